@@ -1,0 +1,57 @@
+using System.CommandLine;
+using CellCompiler.Input;
+using CellCompiler.Lowering;
+using CellCompiler.Shapes;
+
+namespace CellCompiler.Cli;
+
+/// <summary>
+/// Runs the parsed command and turns every expected failure into a one-line message and the
+/// contract's exit code: never a stack trace.
+/// </summary>
+public static class CommandRunner
+{
+    public static int Run(RootCommand root, string[] args)
+    {
+        var parse = root.Parse(args);
+        if (parse.Errors.Count > 0)
+        {
+            foreach (var error in parse.Errors)
+                Console.Error.WriteLine($"cellc: {error.Message}");
+            Console.Error.WriteLine("Run 'cellc --help' or 'cellc COMMAND --help' for usage.");
+            return ExitCodes.BadInput;
+        }
+        try
+        {
+            return parse.Invoke(new InvocationConfiguration { EnableDefaultExceptionHandler = false });
+        }
+        catch (Exception e)
+        {
+            return Report(e);
+        }
+    }
+
+    public static int Report(Exception e)
+    {
+        switch (e)
+        {
+            case InputException input:
+                Console.Error.WriteLine($"cellc: error: {input.Message}");
+                return ExitCodes.BadInput;
+            case DeadCellException dead:
+                Console.Error.WriteLine($"cellc: {dead.Message}");
+                return ExitCodes.CandidateFailed;
+            case CompileException compile:
+                Console.Error.WriteLine($"cellc: error: {compile.Message}");
+                return ExitCodes.BadInput;
+            case OutputException output:
+                Console.Error.WriteLine($"cellc: error: {output.Message}");
+                return ExitCodes.BadInput;
+            default:
+                // A bug, not bad input: say so plainly, still without a stack trace.
+                Console.Error.WriteLine($"cellc: internal error ({e.GetType().Name}): {e.Message}");
+                Console.Error.WriteLine("This is a bug in cellc; please report it with the input that caused it.");
+                return 70;
+        }
+    }
+}

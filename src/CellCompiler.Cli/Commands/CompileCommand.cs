@@ -1,0 +1,72 @@
+using System.CommandLine;
+using CellCompiler.Cli.Options;
+using CellCompiler.Cli.Output;
+using CellCompiler.Compilation;
+using CellCompiler.Input;
+using CellCompiler.Onnx;
+
+namespace CellCompiler.Cli.Commands;
+
+/// <summary>`cellc compile`: one genotype to one ONNX file and a summary of its figures.</summary>
+public static class CompileCommand
+{
+    public static Command Create()
+    {
+        var genotype = new Argument<string>("GENOTYPE") { Description = "Genotype file (JSON, format genotype/1)." };
+        var output = new Option<string?>("--output", "-o")
+        {
+            Description = "Where to write the model (default: the genotype file's name with .onnx, in the current folder).",
+            HelpName = "OUT.onnx",
+        };
+        var noWrite = new Option<bool>("--no-write") { Description = "Compile and report without writing the model file." };
+        var seed = new Option<long>("--seed") { Description = "Seed of the weight generator; changes only weight values.", DefaultValueFactory = _ => 0 };
+        var opset = new Option<int>("--opset")
+        {
+            Description = $"ONNX opset to target, {OnnxVersions.MinOpset} to {OnnxVersions.MaxOpset}.",
+            DefaultValueFactory = _ => OnnxVersions.DefaultOpset,
+        };
+        opset.Validators.Add(result =>
+        {
+            var value = result.GetValueOrDefault<int>();
+            if (value is < OnnxVersions.MinOpset or > OnnxVersions.MaxOpset)
+                result.AddError($"--opset must be between {OnnxVersions.MinOpset} and {OnnxVersions.MaxOpset}, found {value}");
+        });
+        var json = new Option<bool>("--json") { Description = "Print one JSON object instead of the summary." };
+        var skeleton = new SkeletonOptions();
+
+        var command = new Command("compile",
+            "Lower a genotype and a skeleton to an ONNX model, then print its shapes, params, buffers, MACs, " +
+            "peak activation memory, op counts and warnings. Exit 1 if the cell is dead, 2 on bad input.");
+        command.Arguments.Add(genotype);
+        foreach (var option in new Option[] { output, noWrite, seed, opset, json })
+            command.Options.Add(option);
+        skeleton.AddTo(command);
+
+        command.SetAction(parse =>
+        {
+            var genotypePath = parse.GetValue(genotype)!;
+            var parsed = GenotypeReader.ReadFile(genotypePath);
+            var resolved = skeleton.Resolve(parse);
+            var model = Compiler.Compile(parsed, resolved, new CompileOptions(parse.GetValue(seed), parse.GetValue(opset)));
+
+            string? path = null;
+            if (!parse.GetValue(noWrite))
+            {
+                path = parse.GetValue(output) ?? Path.GetFileNameWithoutExtension(genotypePath) + ".onnx";
+                AtomicFile.Write(path, model.OnnxBytes);
+            }
+
+            if (parse.GetValue(json))
+            {
+                using var stdout = Console.OpenStandardOutput();
+                CompileReport.WriteJson(stdout, model, path);
+            }
+            else
+            {
+                CompileReport.WriteText(Console.Out, model, path);
+            }
+            return ExitCodes.Ok;
+        });
+        return command;
+    }
+}

@@ -1,0 +1,43 @@
+using CellCompiler.Figures;
+using CellCompiler.Hashing;
+using CellCompiler.Input;
+using CellCompiler.Lowering;
+using CellCompiler.Onnx;
+using CellCompiler.Shapes;
+
+namespace CellCompiler.Compilation;
+
+/// <summary>
+/// The whole pipeline, top-down: lower -> infer shapes -> count figures -> emit ONNX.
+/// Input is an already validated genotype and resolved skeleton (see <see cref="GenotypeReader"/>).
+/// </summary>
+public static class Compiler
+{
+    /// <exception cref="DeadCellException">the cell's output does not depend on its input</exception>
+    /// <exception cref="CompileException">the network cannot be formed or would be too large</exception>
+    public static CompiledModel Compile(Genotype genotype, Skeleton skeleton, CompileOptions? options = null)
+    {
+        options ??= CompileOptions.Default;
+        if (options.Opset is < OnnxVersions.MinOpset or > OnnxVersions.MaxOpset)
+            throw new ArgumentOutOfRangeException(nameof(options), $"opset must be {OnnxVersions.MinOpset} to {OnnxVersions.MaxOpset}");
+
+        var liveness = Liveness.Analyse(genotype);
+        var hash = GenotypeHasher.Hash(genotype, liveness);
+        var network = Lowerer.Lower(genotype, skeleton);
+        var shaped = ShapeInference.Infer(network);
+        var figures = FigureCounter.Count(shaped);
+        if (figures.WeightBytes >= Limits.MaxModelBytes)
+            throw new CompileException(
+                $"the model's weights take {figures.WeightBytes:N0} bytes; an ONNX file holds at most 2 GiB. Use fewer or narrower cells.");
+
+        var metadata = new List<KeyValuePair<string, string>>
+        {
+            new("genotype_name", genotype.Name),
+            new("genotype_hash", hash),
+            new("skeleton", skeleton.ToJson()),
+            new("seed", options.Seed.ToString(System.Globalization.CultureInfo.InvariantCulture)),
+        };
+        var bytes = OnnxEmitter.Emit(shaped, new EmitOptions(options.Seed, options.Opset, genotype.Name, metadata));
+        return new CompiledModel(genotype.Name, hash, skeleton, options, shaped, figures, network.Warnings, bytes);
+    }
+}

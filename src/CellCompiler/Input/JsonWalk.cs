@@ -1,0 +1,118 @@
+using System.Text.Json;
+
+namespace CellCompiler.Input;
+
+/// <summary>
+/// Typed access to a JsonElement that reports problems as <see cref="InputException"/> with the
+/// file name and JSON path, so that every reader phrases errors the same way.
+/// </summary>
+internal readonly struct JsonWalk(string origin, JsonElement element, string path)
+{
+    public string Origin { get; } = origin;
+    public JsonElement Element { get; } = element;
+    public string Path { get; } = path;
+
+    public static JsonDocument ParseDocument(string origin, ReadOnlyMemory<byte> utf8)
+    {
+        if (utf8.Length > Limits.MaxJsonBytes)
+            throw new InputException(origin, "",
+                $"the JSON is {utf8.Length:N0} bytes; the limit is {Limits.MaxJsonBytes:N0} bytes (1 MiB)");
+        try
+        {
+            return JsonDocument.Parse(utf8, new JsonDocumentOptions
+            {
+                AllowTrailingCommas = false,
+                CommentHandling = JsonCommentHandling.Disallow,
+                MaxDepth = 16,
+                AllowDuplicateProperties = false,
+            });
+        }
+        catch (JsonException e)
+        {
+            var where = e.LineNumber is { } line ? $" at line {line + 1}, column {(e.BytePositionInLine ?? 0) + 1}" : "";
+            throw new InputException(origin, "", $"malformed JSON{where}: {FirstSentence(e.Message)}");
+        }
+    }
+
+    private static string FirstSentence(string message)
+    {
+        var cut = message.IndexOf(" Path:", StringComparison.Ordinal);
+        return (cut > 0 ? message[..cut] : message).Trim();
+    }
+
+    public InputException Error(string problem) => new(Origin, Path, problem);
+
+    public JsonWalk Property(string name) => new(Origin, Element.GetProperty(name), Join(Path, name));
+
+    public JsonWalk Item(int index) => new(Origin, Element[index], $"{Path}[{index}]");
+
+    public static string Join(string path, string name) => path.Length == 0 ? name : $"{path}.{name}";
+
+    public JsonWalk RequireObject(params string[] allowed)
+    {
+        if (Element.ValueKind != JsonValueKind.Object)
+            throw Error($"expected an object, found {Describe(Element)}");
+        foreach (var property in Element.EnumerateObject())
+            if (Array.IndexOf(allowed, property.Name) < 0)
+                throw new InputException(Origin, Join(Path, property.Name),
+                    $"unknown field '{property.Name}' (allowed here: {string.Join(", ", allowed)})");
+        return this;
+    }
+
+    public bool Has(string name) => Element.TryGetProperty(name, out _);
+
+    public JsonWalk Required(string name)
+    {
+        if (!Element.TryGetProperty(name, out var value))
+            throw Error($"missing required field '{name}'");
+        return new JsonWalk(Origin, value, Join(Path, name));
+    }
+
+    public int RequireInt(int min, int max)
+    {
+        if (Element.ValueKind != JsonValueKind.Number || !Element.TryGetInt64(out var value))
+            throw Error($"expected an integer, found {Describe(Element)}");
+        if (value < min || value > max)
+            throw Error($"{value} is out of range: must be between {min} and {max}");
+        return (int)value;
+    }
+
+    public string RequireString()
+    {
+        if (Element.ValueKind != JsonValueKind.String)
+            throw Error($"expected a string, found {Describe(Element)}");
+        return Element.GetString()!;
+    }
+
+    public bool RequireBool()
+    {
+        if (Element.ValueKind is not (JsonValueKind.True or JsonValueKind.False))
+            throw Error($"expected true or false, found {Describe(Element)}");
+        return Element.GetBoolean();
+    }
+
+    public int RequireArray(int minLength, int maxLength, string what)
+    {
+        if (Element.ValueKind != JsonValueKind.Array)
+            throw Error($"expected an array, found {Describe(Element)}");
+        var length = Element.GetArrayLength();
+        if (length < minLength)
+            throw Error($"needs at least {minLength} {what}, found {length}");
+        if (length > maxLength)
+            throw Error($"has {length} {what}; the limit is {maxLength}");
+        return length;
+    }
+
+    public static string Describe(JsonElement element) => element.ValueKind switch
+    {
+        JsonValueKind.Object => "an object",
+        JsonValueKind.Array => "an array",
+        JsonValueKind.String => $"the string \"{Truncate(element.GetString()!)}\"",
+        JsonValueKind.Number => $"the number {element.GetRawText()}",
+        JsonValueKind.True or JsonValueKind.False => element.GetRawText(),
+        JsonValueKind.Null => "null",
+        _ => "nothing",
+    };
+
+    private static string Truncate(string text) => text.Length <= 40 ? text : text[..40] + "...";
+}

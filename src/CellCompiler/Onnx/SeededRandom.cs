@@ -1,0 +1,90 @@
+namespace CellCompiler.Onnx;
+
+/// <summary>
+/// A small deterministic generator (xoshiro256** seeded through SplitMix64, both published
+/// public-domain algorithms) so that weights do not depend on the .NET version's Random.
+/// </summary>
+internal struct SeededRandom
+{
+    private ulong _s0, _s1, _s2, _s3;
+
+    public SeededRandom(ulong seed)
+    {
+        _s0 = SplitMix(ref seed);
+        _s1 = SplitMix(ref seed);
+        _s2 = SplitMix(ref seed);
+        _s3 = SplitMix(ref seed);
+    }
+
+    /// <summary>An independent stream per tensor: one tensor's weights never shift when another changes.</summary>
+    public static SeededRandom ForTensor(long seed, string tensorName)
+    {
+        var state = (ulong)seed;
+        var mixed = SplitMix(ref state) ^ Fnv1a(tensorName);
+        return new SeededRandom(mixed);
+    }
+
+    private static ulong SplitMix(ref ulong state)
+    {
+        var z = state += 0x9E3779B97F4A7C15UL;
+        z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9UL;
+        z = (z ^ (z >> 27)) * 0x94D049BB133111EBUL;
+        return z ^ (z >> 31);
+    }
+
+    private static ulong Fnv1a(string text)
+    {
+        var hash = 0xCBF29CE484222325UL;
+        foreach (var ch in text)
+        {
+            hash ^= ch;
+            hash *= 0x100000001B3UL;
+        }
+        return hash;
+    }
+
+    public ulong NextUInt64()
+    {
+        var result = ulong.RotateLeft(_s1 * 5, 7) * 9;
+        var t = _s1 << 17;
+        _s2 ^= _s0;
+        _s3 ^= _s1;
+        _s1 ^= _s2;
+        _s0 ^= _s3;
+        _s2 ^= t;
+        _s3 = ulong.RotateLeft(_s3, 45);
+        return result;
+    }
+
+    /// <summary>Uniform in [0, 1) with 53 random bits.</summary>
+    public double NextDouble() => (NextUInt64() >> 11) * (1.0 / (1UL << 53));
+
+    /// <summary>Fills with N(0, std^2) by the Box-Muller transform, two values per pair of draws.</summary>
+    public void FillNormal(Span<float> values, double std)
+    {
+        var i = 0;
+        for (; i + 1 < values.Length; i += 2)
+        {
+            var (a, b) = NormalPair();
+            values[i] = (float)(a * std);
+            values[i + 1] = (float)(b * std);
+        }
+        if (i < values.Length)
+            values[i] = (float)(NormalPair().Item1 * std);
+    }
+
+    public void FillUniform(Span<float> values, double bound)
+    {
+        for (var i = 0; i < values.Length; i++)
+            values[i] = (float)((NextDouble() * 2 - 1) * bound);
+    }
+
+    private (double, double) NormalPair()
+    {
+        var u1 = 1.0 - NextDouble(); // in (0, 1], so the logarithm is finite
+        var u2 = NextDouble();
+        var radius = Math.Sqrt(-2.0 * Math.Log(u1));
+        var (sin, cos) = Math.SinCos(2 * Math.PI * u2);
+        return (radius * cos, radius * sin);
+    }
+}

@@ -1,0 +1,55 @@
+using Microsoft.ML.OnnxRuntime;
+
+namespace CellCompiler.Runtime;
+
+/// <summary>The result of one forward pass: the output values and their shape.</summary>
+public sealed record ForwardResult(float[] Values, long[] Shape)
+{
+    public bool AllFinite => Values.All(float.IsFinite);
+}
+
+/// <summary>
+/// Runs a model on ONNX Runtime's CPU provider. One instance holds one session; inputs are
+/// float32 tensors with the batch size chosen by the caller.
+/// </summary>
+public sealed class ForwardPass : IDisposable
+{
+    private readonly InferenceSession _session;
+
+    public ForwardPass(byte[] model, int intraOpThreads = 1)
+    {
+        using var options = new SessionOptions
+        {
+            IntraOpNumThreads = intraOpThreads,
+            InterOpNumThreads = 1,
+            GraphOptimizationLevel = GraphOptimizationLevel.ORT_ENABLE_ALL,
+            LogSeverityLevel = OrtLoggingLevel.ORT_LOGGING_LEVEL_ERROR,
+        };
+        _session = new InferenceSession(model, options);
+    }
+
+    public string InputName => _session.InputNames[0];
+    public string OutputName => _session.OutputNames[0];
+
+    /// <summary>Seeded standard-normal input of the given shape, so runs are repeatable.</summary>
+    public static float[] RandomInput(long[] shape, long seed)
+    {
+        long count = 1;
+        foreach (var d in shape) count *= d;
+        var values = new float[count];
+        var random = new Onnx.SeededRandom((ulong)seed ^ 0x5EED1A9A7UL);
+        random.FillNormal(values, 1.0);
+        return values;
+    }
+
+    public ForwardResult Run(float[] input, long[] shape)
+    {
+        using var tensor = OrtValue.CreateTensorValueFromMemory(input, shape);
+        using var runOptions = new RunOptions();
+        using var outputs = _session.Run(runOptions, [InputName], [tensor], [OutputName]);
+        var output = outputs[0];
+        return new ForwardResult(output.GetTensorDataAsSpan<float>().ToArray(), output.GetTensorTypeAndShape().Shape);
+    }
+
+    public void Dispose() => _session.Dispose();
+}

@@ -1,0 +1,117 @@
+using CellCompiler.Compilation;
+using CellCompiler.Input;
+using CellCompiler.OnnxFormat;
+using CellCompiler.Runtime;
+using CellCompiler.Tests.Support;
+
+namespace CellCompiler.Tests;
+
+/// <summary>What the emitted ONNX file holds besides the weights (contract section 3, "ONNX").</summary>
+public sealed class OnnxStructureTests
+{
+    private static (CompiledModel Model, ModelProto Proto) CompileFixture(string fixture, string preset = "proxy", int opset = 17)
+    {
+        var model = Compiler.Compile(GenotypeReader.ReadFile(RepoPaths.Fixture(fixture)), SkeletonPresets.All[preset], new CompileOptions(0, opset));
+        return (model, ModelProto.Parser.ParseFrom(model.OnnxBytes));
+    }
+
+    [Fact]
+    public void EveryIntermediateTensorHasAValueInfoWithItsFullShape()
+    {
+        var (model, proto) = CompileFixture("tidepool-h3.json");
+        var graph = proto.Graph;
+        var produced = graph.Node.SelectMany(n => n.Output).Where(o => o != "logits").ToList();
+        var infos = graph.ValueInfo.ToDictionary(v => v.Name);
+        Assert.Equal(produced.Count, infos.Count);
+        foreach (var tensor in produced)
+        {
+            var dims = infos[tensor].Type.TensorType.Shape.Dim;
+            Assert.Equal("N", dims[0].DimParam);
+            Assert.Equal(model.Network[tensor].Dims.Select(d => (long)d), dims.Skip(1).Select(d => d.DimValue));
+        }
+        Assert.Equal(["N", "3", "32", "32"], graph.Input[0].Type.TensorType.Shape.Dim.Select(d => d.DimParam.Length > 0 ? d.DimParam : d.DimValue.ToString()));
+        Assert.Equal("images", graph.Input[0].Name);
+        Assert.Equal("logits", graph.Output[0].Name);
+        Assert.Equal(["N", "10"], graph.Output[0].Type.TensorType.Shape.Dim.Select(d => d.DimParam.Length > 0 ? d.DimParam : d.DimValue.ToString()));
+    }
+
+    [Fact]
+    public void NodeNamesLeadBackToStageCellMotifPathEdgeAndPrimitive()
+    {
+        var (_, proto) = CompileFixture("tidepool-h3.json");
+        var names = proto.Graph.Node.Select(n => n.Name).ToList();
+        Assert.Equal(names.Count, names.Distinct().Count());
+        // Cell edge 0 applies motif reef; reef's edge 0 applies anemone; anemone's edge 0 is conv1x1.
+        Assert.Contains("stage0/cell0/e0:reef/e0:anemone/e0:conv1x1/conv", names);
+        Assert.Contains("stage2/cell0/e4:reef/e3:chiton/e0:conv3x3/bn", names);
+        Assert.Contains("reduce0/dw", names);
+        Assert.Contains("stem/conv", names);
+        Assert.Contains("head/gemm", names);
+        Assert.All(names, n => Assert.Matches("^(stem|stage\\d+/cell\\d+|reduce\\d+|head)/", n));
+    }
+
+    [Fact]
+    public void MetadataHoldsHashSkeletonAndSeedAndVersionsAreSet()
+    {
+        var (model, proto) = CompileFixture("tidepool-flat11.json");
+        var metadata = proto.MetadataProps.ToDictionary(p => p.Key, p => p.Value);
+        Assert.Equal(model.Hash, metadata["genotype_hash"]);
+        Assert.Equal(SkeletonPresets.All["proxy"].ToJson(), metadata["skeleton"]);
+        Assert.Equal("0", metadata["seed"]);
+        Assert.Equal(8, proto.IrVersion);
+        Assert.Equal(17, proto.OpsetImport.Single().Version);
+        Assert.Equal("", proto.OpsetImport.Single().Domain);
+    }
+
+    [Fact]
+    public void BatchNormAndPoolAttributesFollowTheContract()
+    {
+        var (_, proto) = CompileFixture("tidepool-flat11.json");
+        var bn = proto.Graph.Node.First(n => n.OpType == "BatchNormalization");
+        Assert.Equal(1e-5f, bn.Attribute.Single(a => a.Name == "epsilon").F);
+        Assert.Equal(0.9f, bn.Attribute.Single(a => a.Name == "momentum").F);
+        var avg = proto.Graph.Node.First(n => n.OpType == "AveragePool");
+        Assert.Equal(0, avg.Attribute.Single(a => a.Name == "count_include_pad").I);
+        Assert.Equal([1L, 1, 1, 1], avg.Attribute.Single(a => a.Name == "pads").Ints);
+        var depthwise = proto.Graph.Node.First(n => n.Name.EndsWith("e1:sepconv3x3/dw"));
+        Assert.Equal(16, depthwise.Attribute.Single(a => a.Name == "group").I);
+        var gemm = proto.Graph.Node.Single(n => n.OpType == "Gemm");
+        Assert.Equal(1, gemm.Attribute.Single(a => a.Name == "transB").I);
+    }
+
+    /// <summary>
+    /// Every opset the CLI offers loads and runs in ONNX Runtime. (The ONNX reference checker here,
+    /// Debian's python3-onnx 1.12, knows opsets up to 17, so the checker runs on 13..17 below.)
+    /// </summary>
+    [Theory]
+    [InlineData(13)] [InlineData(14)] [InlineData(15)] [InlineData(16)] [InlineData(17)]
+    [InlineData(18)] [InlineData(19)] [InlineData(20)] [InlineData(21)]
+    public void EveryOfferedOpsetRunsInOnnxRuntime(int opset)
+    {
+        var (model, proto) = CompileFixture("tidepool-h3.json", opset: opset);
+        Assert.Equal(opset, proto.OpsetImport.Single().Version);
+        Assert.Equal(opset >= 21 ? 10 : opset >= 19 ? 9 : 8, proto.IrVersion);
+        using var pass = new ForwardPass(model.OnnxBytes);
+        long[] shape = [2, 3, 32, 32];
+        var result = pass.Run(ForwardPass.RandomInput(shape, 1), shape);
+        Assert.Equal([2L, 10], result.Shape);
+        Assert.True(result.AllFinite);
+    }
+
+    [Fact]
+    public void OlderOpsetsPassTheOnnxChecker()
+    {
+        using var folder = new TempFolder();
+        var paths = new List<string>();
+        foreach (var opset in new[] { 13, 14, 15, 16, 17 })
+        {
+            var (model, _) = CompileFixture("tidepool-flat11.json", opset: opset);
+            var path = folder.File($"opset{opset}.onnx");
+            File.WriteAllBytes(path, model.OnnxBytes);
+            paths.Add(path);
+        }
+        var verdicts = PythonReference.RunJsonLines("onnx_check.py", paths.ToArray());
+        Assert.All(verdicts, v => Assert.True(v.GetProperty("ok").GetBoolean(), v.ToString()));
+        Assert.Equal(5, verdicts.Count);
+    }
+}
