@@ -76,6 +76,10 @@ public sealed class BadInputTests
             "levels[1].motifs.cell.edges[1]", Named.GenotypeFile, "[1, 1]", "forward"),
         ["edge-out-of-range"] = new(Level0Edges(""" [0, 1, "conv1x1"], [1, 3, "conv1x1"] """), null, [],
             "levels[0].motifs.a.edges[1]", Named.GenotypeFile, "out of range", "[1, 3]"),
+        ["duplicate-motif-key"] = new(TwoLevels(MotifA + ", " + MotifA, CellEdges), null, [],
+            "levels[0].motifs", Named.GenotypeFile, "'a'", "more than once"),
+        ["duplicate-root-key"] = new(Good.Replace("\"name\": \"bad\",", "\"name\": \"bad\", \"name\": \"again\","), null, [],
+            null, Named.GenotypeFile, "'name'", "more than once"),
         ["edge-negative-index"] = new(Level0Edges(""" [-1, 2, "conv1x1"] """), null, [],
             "levels[0].motifs.a.edges[0]", Named.GenotypeFile, "out of range"),
         ["edge-length-2"] = new(Level0Edges(""" [0, 1, "conv1x1"], [1, 2] """), null, [],
@@ -395,5 +399,37 @@ public sealed class BadInputTests
             list.Add("{\"nodes\": 11, \"motifs\": {\"" + name + "\": {\"edges\": [" + string.Join(",", edges) + "]}}}");
         }
         return $$"""{"format": "genotype/1", "levels": [{{string.Join(",\n", list)}}]}""";
+    }
+
+    [Fact]
+    public void Whole_network_over_the_op_limit_exits_2_before_building_anything()
+    {
+        // Level 0: one 64-node motif with all 2,016 forward edges (2,016 ops). Level 1: the cell applies
+        // it on 30 edges, 60,480 ops per cell, within the per-cell limit; the proxy skeleton stacks
+        // 3 cells, 181,440 ops, over the contract's 100,000 for the fully expanded network.
+        var full = string.Join(",", from j in Enumerable.Range(1, 63) from i in Enumerable.Range(0, j) select $"[{i},{j},\"conv1x1\"]");
+        var uses = string.Join(",", Enumerable.Range(1, 30).Select(j => $"[{j - 1},{j},\"big\"]"));
+        var json = "{\"format\":\"genotype/1\",\"levels\":[{\"nodes\":64,\"motifs\":{\"big\":{\"edges\":[" + full +
+                   "]}}},{\"nodes\":31,\"motifs\":{\"cell\":{\"edges\":[" + uses + "]}}}]}";
+        using var folder = new TempFolder();
+        var path = folder.Write("huge.json", json);
+        var output = folder.File("huge.onnx");
+        var result = ProcessRunner.Cellc(["compile", path, "-o", output], null, folder.Path);
+        Assert.Equal(2, result.ExitCode);
+        Assert.Contains(path, result.Stderr);
+        Assert.Contains("exceeds the limit of 100,000 primitive ops", result.Stderr);
+        Assert.Contains("3 cells", result.Stderr);
+        Assert.False(File.Exists(output));
+    }
+
+    [Fact]
+    public void A_byte_order_mark_is_accepted()
+    {
+        using var folder = new TempFolder();
+        var path = folder.File("bom.json");
+        File.WriteAllBytes(path, [0xEF, 0xBB, 0xBF, .. Encoding.UTF8.GetBytes(Good)]);
+        var result = ProcessRunner.Cellc(["compile", path, "--no-write", "--json"], null, folder.Path);
+        Assert.Equal(0, result.ExitCode);
+        Assert.Contains("\"params\":", result.Stdout);
     }
 }

@@ -19,9 +19,10 @@ public static class CompileCommand
             HelpName = "OUT.onnx",
         };
         var noWrite = new Option<bool>("--no-write") { Description = "Compile and report without writing the model file." };
-        var seed = new Option<long>("--seed") { Description = "Seed of the weight generator; changes only weight values.", DefaultValueFactory = _ => 0 };
+        var seed = new Option<long>("--seed") { HelpName = "N", Description = "Seed of the weight generator; changes only weight values.", DefaultValueFactory = _ => 0 };
         var opset = new Option<int>("--opset")
         {
+            HelpName = "N",
             Description = $"ONNX opset to target, {OnnxVersions.MinOpset} to {OnnxVersions.MaxOpset}.",
             DefaultValueFactory = _ => OnnxVersions.DefaultOpset,
         };
@@ -47,7 +48,9 @@ public static class CompileCommand
             var genotypePath = parse.GetValue(genotype)!;
             var parsed = GenotypeReader.ReadFile(genotypePath);
             var resolved = skeleton.Resolve(parse);
-            var model = Compiler.Compile(parsed, resolved, new CompileOptions(parse.GetValue(seed), parse.GetValue(opset)));
+            CompiledModel model;
+            try { model = Compiler.Compile(parsed, resolved, new CompileOptions(parse.GetValue(seed), parse.GetValue(opset))); }
+            catch (Shapes.CompileException e) { throw new InputException(genotypePath, "", e.Message); }
 
             string? path = null;
             if (!parse.GetValue(noWrite))

@@ -21,6 +21,13 @@ public static class Compiler
         if (options.Opset is < OnnxVersions.MinOpset or > OnnxVersions.MaxOpset)
             throw new ArgumentOutOfRangeException(nameof(options), $"opset must be {OnnxVersions.MinOpset} to {OnnxVersions.MaxOpset}");
 
+        // The contract's op limit covers the whole expanded network, so the skeleton's cell count multiplies the cell.
+        var totalCells = skeleton.Stages.Sum(s => (long)s.Cells);
+        if (ExpansionSize.CellPrimitiveOps(genotype) * totalCells > Limits.MaxExpandedPrimitiveOps)
+            throw new CompileException(
+                $"the expanded network ({totalCells} cells of up to {ExpansionSize.CellPrimitiveOps(genotype):N0} primitive ops each) " +
+                $"exceeds the limit of {Limits.MaxExpandedPrimitiveOps:N0} primitive ops");
+
         var liveness = Liveness.Analyse(genotype);
         var hash = GenotypeHasher.Hash(genotype, liveness);
         var network = Lowerer.Lower(genotype, skeleton);

@@ -21,7 +21,8 @@ public static partial class GenotypeReader
         try
         {
             var info = new FileInfo(path);
-            if (!info.Exists) throw new InputException(origin, "", "file not found");
+            if (!info.Exists)
+                throw new InputException(origin, "", Directory.Exists(path) ? "is a folder, not a genotype file" : "file not found");
             if (info.Length > Limits.MaxJsonBytes)
                 throw new InputException(origin, "",
                     $"the file is {info.Length:N0} bytes; the limit is {Limits.MaxJsonBytes:N0} bytes (1 MiB)");
@@ -91,6 +92,7 @@ public static partial class GenotypeReader
         if (motifsWalk.Element.ValueKind != JsonValueKind.Object)
             throw motifsWalk.Error($"expected an object mapping motif names to motifs, found {JsonWalk.Describe(motifsWalk.Element)}");
 
+        motifsWalk.RequireUniqueKeys();
         var count = 0;
         foreach (var _ in motifsWalk.Element.EnumerateObject()) count++;
         if (count == 0) throw motifsWalk.Error("a level needs at least one motif");
@@ -165,31 +167,9 @@ public static partial class GenotypeReader
         throw edgeWalk.Error($"undefined motif '{op}': level {k - 1} defines {string.Join(", ", below.Motifs.Select(m => m.Name))}");
     }
 
-    /// <summary>Counts primitive ops of the fully expanded cell bottom-up, saturating, before any expansion happens.</summary>
     private static void CheckExpandedSize(Genotype genotype, string origin)
     {
-        var counts = new Dictionary<string, long>[genotype.Levels.Count];
-        for (var k = 0; k < genotype.Levels.Count; k++)
-        {
-            counts[k] = new Dictionary<string, long>(StringComparer.Ordinal);
-            foreach (var motif in genotype.Levels[k].Motifs)
-            {
-                long total = 0;
-                foreach (var edge in motif.Edges)
-                {
-                    long size = edge.Op switch
-                    {
-                        Primitives.None => 0,
-                        _ when k == 0 || edge.Op == Primitives.Identity => 1,
-                        _ => counts[k - 1][edge.Op],
-                    };
-                    total = Math.Min(total + size, Limits.MaxExpandedPrimitiveOps + 1);
-                }
-                counts[k][motif.Name] = total;
-            }
-        }
-        var cellOps = counts[^1][genotype.Cell.Name];
-        if (cellOps > Limits.MaxExpandedPrimitiveOps)
+        if (ExpansionSize.CellPrimitiveOps(genotype) > Limits.MaxExpandedPrimitiveOps)
             throw new InputException(origin, $"levels[{genotype.TopLevel}].motifs.{genotype.Cell.Name}",
                 $"the fully expanded cell has more than {Limits.MaxExpandedPrimitiveOps:N0} primitive ops (the limit)");
     }

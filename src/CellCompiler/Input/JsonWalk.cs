@@ -17,14 +17,17 @@ internal readonly struct JsonWalk(string origin, JsonElement element, string pat
         if (utf8.Length > Limits.MaxJsonBytes)
             throw new InputException(origin, "",
                 $"the JSON is {utf8.Length:N0} bytes; the limit is {Limits.MaxJsonBytes:N0} bytes (1 MiB)");
+        // Editors on some systems write a UTF-8 byte order mark; it carries no meaning here.
+        if (utf8.Span.StartsWith((ReadOnlySpan<byte>)[0xEF, 0xBB, 0xBF]))
+            utf8 = utf8[3..];
         try
         {
+            // Duplicate keys are found by RequireObject, which can name their JSON path.
             return JsonDocument.Parse(utf8, new JsonDocumentOptions
             {
                 AllowTrailingCommas = false,
                 CommentHandling = JsonCommentHandling.Disallow,
                 MaxDepth = 16,
-                AllowDuplicateProperties = false,
             });
         }
         catch (JsonException e)
@@ -36,8 +39,12 @@ internal readonly struct JsonWalk(string origin, JsonElement element, string pat
 
     private static string FirstSentence(string message)
     {
-        var cut = message.IndexOf(" Path:", StringComparison.Ordinal);
-        return (cut > 0 ? message[..cut] : message).Trim();
+        foreach (var marker in new[] { " Path:", " LineNumber:" })
+        {
+            var cut = message.IndexOf(marker, StringComparison.Ordinal);
+            if (cut > 0) message = message[..cut];
+        }
+        return message.Trim();
     }
 
     public InputException Error(string problem) => new(Origin, Path, problem);
@@ -52,11 +59,21 @@ internal readonly struct JsonWalk(string origin, JsonElement element, string pat
     {
         if (Element.ValueKind != JsonValueKind.Object)
             throw Error($"expected an object, found {Describe(Element)}");
+        RequireUniqueKeys();
         foreach (var property in Element.EnumerateObject())
             if (Array.IndexOf(allowed, property.Name) < 0)
                 throw new InputException(Origin, Join(Path, property.Name),
                     $"unknown field '{property.Name}' (allowed here: {string.Join(", ", allowed)})");
         return this;
+    }
+
+    /// <summary>A repeated key would silently override the first; for a typo-proof format that is an error.</summary>
+    public void RequireUniqueKeys()
+    {
+        var seen = new HashSet<string>(StringComparer.Ordinal);
+        foreach (var property in Element.EnumerateObject())
+            if (!seen.Add(property.Name))
+                throw Error($"the key '{property.Name}' appears more than once");
     }
 
     public bool Has(string name) => Element.TryGetProperty(name, out _);
