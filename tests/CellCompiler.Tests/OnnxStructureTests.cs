@@ -1,3 +1,4 @@
+using Google.Protobuf;
 using CellCompiler.Compilation;
 using CellCompiler.Input;
 using CellCompiler.OnnxFormat;
@@ -113,5 +114,24 @@ public sealed class OnnxStructureTests
         var verdicts = PythonReference.RunJsonLines("onnx_check.py", paths.ToArray());
         Assert.All(verdicts, v => Assert.True(v.GetProperty("ok").GetBoolean(), v.ToString()));
         Assert.Equal(5, verdicts.Count);
+    }
+}
+
+/// <summary>The one-pass writer must produce exactly the bytes the protobuf runtime writes for the same model.</summary>
+public sealed class ModelWriterTests
+{
+    [Theory]
+    [InlineData("tidepool-h3.json", "proxy")]
+    [InlineData("tidepool-flat11.json", "full")]
+    [InlineData("tidepool-deadcode.json", "full224")]
+    public void OnePassBytesEqualTheProtobufRuntimeSerialization(string fixture, string preset)
+    {
+        var genotype = GenotypeReader.ReadFile(RepoPaths.Fixture(fixture));
+        var net = CellCompiler.Shapes.ShapeInference.Infer(CellCompiler.Lowering.Lowerer.Lower(genotype, SkeletonPresets.All[preset]));
+        var options = new CellCompiler.Onnx.EmitOptions(4, 17, "g", [new("k", "v")]);
+        var onePass = CellCompiler.Onnx.OnnxEmitter.Emit(net, options);
+        var viaRuntime = CellCompiler.Onnx.OnnxEmitter.Build(net, options).ToByteArray();
+        Assert.Equal(viaRuntime.Length, onePass.Length);
+        Assert.True(viaRuntime.AsSpan().SequenceEqual(onePass), "bytes differ");
     }
 }

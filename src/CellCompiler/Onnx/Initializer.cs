@@ -16,11 +16,12 @@ internal sealed record Initializer(string Name, long[] Dims, Fill Fill, double S
         }
     }
 
-    /// <summary>Draws the values as little-endian float32 bytes (ONNX raw_data layout).</summary>
-    public byte[] Materialize(long seed)
+    public long ByteLength => Elements * sizeof(float);
+
+    /// <summary>Draws the values into <paramref name="destination"/> as little-endian float32 (ONNX raw_data layout).</summary>
+    public void WriteValues(Span<byte> destination, long seed)
     {
-        var bytes = new byte[checked(Elements * sizeof(float))];
-        var values = System.Runtime.InteropServices.MemoryMarshal.Cast<byte, float>(bytes.AsSpan());
+        var values = System.Runtime.InteropServices.MemoryMarshal.Cast<byte, float>(destination);
         switch (Fill)
         {
             case Fill.HeNormal:
@@ -32,10 +33,20 @@ internal sealed record Initializer(string Name, long[] Dims, Fill Fill, double S
             case Fill.Ones:
                 values.Fill(1f);
                 break;
+            default:
+                values.Clear();
+                break;
         }
         if (!BitConverter.IsLittleEndian)
-            for (var i = 0; i < values.Length; i++)
-                values[i] = BitConverter.Int32BitsToSingle(System.Buffers.Binary.BinaryPrimitives.ReverseEndianness(BitConverter.SingleToInt32Bits(values[i])));
+            System.Buffers.Binary.BinaryPrimitives.ReverseEndianness(
+                System.Runtime.InteropServices.MemoryMarshal.Cast<float, int>(values),
+                System.Runtime.InteropServices.MemoryMarshal.Cast<float, int>(values));
+    }
+
+    public byte[] Materialize(long seed)
+    {
+        var bytes = new byte[checked(ByteLength)];
+        WriteValues(bytes, seed);
         return bytes;
     }
 }

@@ -14,12 +14,31 @@ public sealed record EmitOptions(long Seed, int Opset, string GraphName, IReadOn
 /// </summary>
 public static class OnnxEmitter
 {
-    private const int Float = (int)TensorProto.Types.DataType.Float;
+    internal const int Float = (int)TensorProto.Types.DataType.Float;
     private const string Batch = "N";
 
-    public static byte[] Emit(ShapedNetwork net, EmitOptions options) => Build(net, options).ToByteArray();
+    /// <summary>The serialized model, written in one pass with the weights drawn straight into the output buffer.</summary>
+    public static byte[] Emit(ShapedNetwork net, EmitOptions options)
+    {
+        var (model, initializers) = Structure(net, options);
+        return ModelWriter.Write(model, initializers, options.Seed);
+    }
 
+    /// <summary>The whole model as a protobuf object, weights included (slower: the weights are copied).</summary>
     public static ModelProto Build(ShapedNetwork net, EmitOptions options)
+    {
+        var (model, initializers) = Structure(net, options);
+        foreach (var initializer in initializers)
+        {
+            var tensor = ModelWriter.TensorHeader(initializer);
+            tensor.RawData = UnsafeByteOperations.UnsafeWrap(initializer.Materialize(options.Seed));
+            model.Graph.Initializer.Add(tensor);
+        }
+        return model;
+    }
+
+    /// <summary>Everything but the weight values: nodes, value_info, inputs, outputs, metadata, and the list of initializers to draw.</summary>
+    private static (ModelProto Model, List<Initializer> Initializers) Structure(ShapedNetwork net, EmitOptions options)
     {
         var graph = new GraphProto { Name = options.GraphName };
         graph.Input.Add(ValueInfo(net.Network.InputName, net.InputShape));
@@ -33,16 +52,6 @@ public static class OnnxEmitter
                 graph.ValueInfo.Add(ValueInfo(op.Output, net[op.Output]));
         }
 
-        // Weight tensors are independent streams, so drawing them in parallel keeps the bytes deterministic.
-        var data = new byte[initializers.Count][];
-        Parallel.For(0, initializers.Count, i => data[i] = initializers[i].Materialize(options.Seed));
-        for (var i = 0; i < initializers.Count; i++)
-        {
-            var tensor = new TensorProto { Name = initializers[i].Name, DataType = Float, RawData = UnsafeByteOperations.UnsafeWrap(data[i]) };
-            tensor.Dims.AddRange(initializers[i].Dims);
-            graph.Initializer.Add(tensor);
-        }
-
         var model = new ModelProto
         {
             IrVersion = OnnxVersions.IrVersionFor(options.Opset),
@@ -53,7 +62,7 @@ public static class OnnxEmitter
         model.OpsetImport.Add(new OperatorSetIdProto { Domain = "", Version = options.Opset });
         foreach (var (key, value) in options.Metadata)
             model.MetadataProps.Add(new StringStringEntryProto { Key = key, Value = value });
-        return model;
+        return (model, initializers);
     }
 
     private static NodeProto Node(NetOp op, ShapedNetwork net, List<Initializer> initializers)

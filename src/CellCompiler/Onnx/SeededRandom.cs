@@ -59,32 +59,34 @@ internal struct SeededRandom
     /// <summary>Uniform in [0, 1) with 53 random bits.</summary>
     public double NextDouble() => (NextUInt64() >> 11) * (1.0 / (1UL << 53));
 
-    /// <summary>Fills with N(0, std^2) by the Box-Muller transform, two values per pair of draws.</summary>
+    /// <summary>Fills with N(0, std^2) samples (ziggurat method).</summary>
     public void FillNormal(Span<float> values, double std)
     {
-        var i = 0;
-        for (; i + 1 < values.Length; i += 2)
+        // The common case of the ziggurat is inlined and kept in float: this loop is most of a full-size compile.
+        var accept = NormalZiggurat.Accept;
+        var edge = NormalZiggurat.EdgeSingle;
+        var scale = (float)std;
+        for (var i = 0; i < values.Length; i++)
         {
-            var (a, b) = NormalPair();
-            values[i] = (float)(a * std);
-            values[i + 1] = (float)(b * std);
+            var bits = NextUInt64();
+            var layer = (int)(bits & NormalZiggurat.LayerMask);
+            var u = NormalZiggurat.Fraction(bits);
+            if (u < accept[layer])
+            {
+                // Copy the sign bit (bit 39 of the draw) into the float: a branch here would be mispredicted half the time.
+                var magnitude = BitConverter.SingleToUInt32Bits(u * edge[layer] * scale);
+                values[i] = BitConverter.UInt32BitsToSingle(magnitude | (uint)((bits >> 8) & 0x8000_0000UL));
+            }
+            else
+            {
+                values[i] = (float)(NormalZiggurat.Outside(ref this, layer, u, NormalZiggurat.IsNegative(bits)) * std);
+            }
         }
-        if (i < values.Length)
-            values[i] = (float)(NormalPair().Item1 * std);
     }
 
     public void FillUniform(Span<float> values, double bound)
     {
         for (var i = 0; i < values.Length; i++)
             values[i] = (float)((NextDouble() * 2 - 1) * bound);
-    }
-
-    private (double, double) NormalPair()
-    {
-        var u1 = 1.0 - NextDouble(); // in (0, 1], so the logarithm is finite
-        var u2 = NextDouble();
-        var radius = Math.Sqrt(-2.0 * Math.Log(u1));
-        var (sin, cos) = Math.SinCos(2 * Math.PI * u2);
-        return (radius * cos, radius * sin);
     }
 }
