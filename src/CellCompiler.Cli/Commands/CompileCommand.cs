@@ -3,7 +3,6 @@ using CellCompiler.Cli.Options;
 using CellCompiler.Cli.Output;
 using CellCompiler.Compilation;
 using CellCompiler.Input;
-using CellCompiler.Onnx;
 
 namespace CellCompiler.Cli.Commands;
 
@@ -19,19 +18,7 @@ public static class CompileCommand
             HelpName = "OUT.onnx",
         };
         var noWrite = new Option<bool>("--no-write") { Description = "Compile and report without writing the model file." };
-        var seed = new Option<long>("--seed") { HelpName = "N", Description = "Seed of the weight generator; changes only weight values.", DefaultValueFactory = _ => 0 };
-        var opset = new Option<int>("--opset")
-        {
-            HelpName = "N",
-            Description = $"ONNX opset to target, {OnnxVersions.MinOpset} to {OnnxVersions.MaxOpset}.",
-            DefaultValueFactory = _ => OnnxVersions.DefaultOpset,
-        };
-        opset.Validators.Add(result =>
-        {
-            var value = result.GetValueOrDefault<int>();
-            if (value is < OnnxVersions.MinOpset or > OnnxVersions.MaxOpset)
-                result.AddError($"--opset must be between {OnnxVersions.MinOpset} and {OnnxVersions.MaxOpset}, found {value}");
-        });
+        var settings = new CompileSettingsOptions();
         var json = new Option<bool>("--json") { Description = "Print one JSON object instead of the summary." };
         var skeleton = new SkeletonOptions();
 
@@ -39,8 +26,9 @@ public static class CompileCommand
             "Lower a genotype and a skeleton to an ONNX model, then print its shapes, params, buffers, MACs, " +
             "peak activation memory, op counts and warnings. Exit 1 if the cell is dead, 2 on bad input.");
         command.Arguments.Add(genotype);
-        foreach (var option in new Option[] { output, noWrite, seed, opset, json })
+        foreach (var option in new Option[] { output, noWrite, json })
             command.Options.Add(option);
+        settings.AddTo(command);
         skeleton.AddTo(command);
 
         command.SetAction(parse =>
@@ -49,7 +37,7 @@ public static class CompileCommand
             var parsed = GenotypeReader.ReadFile(genotypePath);
             var resolved = skeleton.Resolve(parse);
             CompiledModel model;
-            try { model = Compiler.Compile(parsed, resolved, new CompileOptions(parse.GetValue(seed), parse.GetValue(opset))); }
+            try { model = Compiler.Compile(parsed, resolved, settings.Resolve(parse)); }
             catch (Shapes.CompileException e) { throw new InputException(genotypePath, "", e.Message); }
 
             string? path = null;

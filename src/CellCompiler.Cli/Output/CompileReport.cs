@@ -9,7 +9,7 @@ public static class CompileReport
 {
     public static void WriteJson(Stream stream, CompiledModel model, string? onnxPath)
     {
-        using var writer = new Utf8JsonWriter(stream, new JsonWriterOptions { Indented = false });
+        using var writer = JsonOutput.Writer(stream);
         writer.WriteStartObject();
         writer.WriteString("name", model.Name);
         writer.WriteString("hash", model.Hash);

@@ -27,7 +27,7 @@ public sealed record Skeleton(
     public string ToJson()
     {
         using var stream = new MemoryStream();
-        using (var writer = new Utf8JsonWriter(stream))
+        using (var writer = JsonOutput.Writer(stream))
             WriteJson(writer);
         return System.Text.Encoding.UTF8.GetString(stream.ToArray());
     }

@@ -1,0 +1,54 @@
+namespace CellCompiler.Runtime;
+
+/// <summary>
+/// Runs a model on ONNX Runtime's CPU provider and checks that it works: the session loads, the
+/// output has the expected shape at batch 1 and at batch 2, every logit is finite, and the logits
+/// depend on the input (two different samples give different logits).
+/// </summary>
+public static class SmokeTest
+{
+    /// <param name="inputShape">Shape of one sample (without the batch dimension).</param>
+    /// <param name="outputShape">Expected shape of one sample's output (without the batch dimension).</param>
+    public static SmokeVerdict Run(byte[] model, IReadOnlyList<int> inputShape, IReadOnlyList<int> outputShape, long seed = 0)
+    {
+        ForwardPass pass;
+        try { pass = new ForwardPass(model); }
+        catch (Exception e) when (e is Microsoft.ML.OnnxRuntime.OnnxRuntimeException or InvalidOperationException)
+        {
+            return new SmokeVerdict($"ONNX Runtime could not load the model: {OneLine(e.Message)}");
+        }
+        using (pass)
+        {
+            try
+            {
+                var one = pass.Run(ForwardPass.RandomInput(Batch(1, inputShape), seed), Batch(1, inputShape));
+                if (Problem(one, 1, outputShape) is { } p1) return new SmokeVerdict(p1);
+                var two = pass.Run(ForwardPass.RandomInput(Batch(2, inputShape), seed + 1), Batch(2, inputShape));
+                if (Problem(two, 2, outputShape) is { } p2) return new SmokeVerdict(p2);
+                var perSample = two.Values.Length / 2;
+                if (two.Values.AsSpan(0, perSample).SequenceEqual(two.Values.AsSpan(perSample, perSample)))
+                    return new SmokeVerdict("the output does not depend on the input: two different input samples gave identical logits");
+                return SmokeVerdict.Ok;
+            }
+            catch (Microsoft.ML.OnnxRuntime.OnnxRuntimeException e)
+            {
+                return new SmokeVerdict($"ONNX Runtime failed while running the model: {OneLine(e.Message)}");
+            }
+        }
+    }
+
+    private static long[] Batch(int batch, IReadOnlyList<int> shape) => [batch, .. shape.Select(d => (long)d)];
+
+    private static string? Problem(ForwardResult result, int batch, IReadOnlyList<int> expected)
+    {
+        var want = Batch(batch, expected);
+        if (!result.Shape.SequenceEqual(want))
+            return $"at batch {batch} the output shape is [{string.Join(", ", result.Shape)}], expected [{string.Join(", ", want)}]";
+        var bad = result.Values.Count(v => !float.IsFinite(v));
+        if (bad > 0)
+            return $"at batch {batch}, {bad} of {result.Values.Length} logits are not finite (NaN or infinity)";
+        return null;
+    }
+
+    private static string OneLine(string text) => text.ReplaceLineEndings(" ").Trim();
+}
