@@ -91,7 +91,7 @@ public static class CheckCommand
             return ReadPopulationFile(input);
         }
         var genotype = GenotypeReader.ReadFile(input);
-        return [Candidate.Valid(genotype.Name, genotype)];
+        return [Candidate.Valid(genotype.Id ?? genotype.Name, genotype)];
     }
 
     private static IEnumerable<Candidate> ReadPopulationFile(string path)

@@ -32,7 +32,8 @@ public static class HumanNumber
         var token = result.Tokens.Count > 0 ? result.Tokens[0].Value : "";
         if (!TryParse(token, out var value) || value <= 0)
         {
-            result.AddError($"{result.Parent?.ToString() ?? "option"}: '{token}' is not a positive number (forms like 5e6, 5M, 250k are accepted)");
+            var option = (result.Parent as OptionResult)?.Option.Name ?? "option";
+            result.AddError($"{option}: '{token}' is not a positive number (forms like 5e6, 5M, 250k are accepted)");
             return null;
         }
         return value;

@@ -34,26 +34,25 @@ public static partial class GenotypeReader
     }
 
     /// <summary>Parses one genotype document. <paramref name="defaultName"/> is used when the document has no name.</summary>
-    public static Genotype Parse(ReadOnlyMemory<byte> utf8, string origin, string defaultName, bool allowId = false)
+    /// <remarks>An `id` (a population line's field) is accepted everywhere, so a line saved as a file still compiles.</remarks>
+    public static Genotype Parse(ReadOnlyMemory<byte> utf8, string origin, string defaultName)
     {
         using var document = JsonWalk.ParseDocument(origin, utf8);
         var root = new JsonWalk(origin, document.RootElement, "");
-        return allowId
-            ? ReadGenotype(root.RequireObject("format", "name", "levels", "id"), defaultName, readId: true)
-            : ReadGenotype(root.RequireObject("format", "name", "levels"), defaultName, readId: false);
+        return ReadGenotype(root.RequireObject("format", "name", "levels", "id"), defaultName);
     }
 
     public static Genotype Parse(string json, string origin, string defaultName) =>
         Parse(System.Text.Encoding.UTF8.GetBytes(json), origin, defaultName);
 
-    private static Genotype ReadGenotype(JsonWalk root, string defaultName, bool readId)
+    private static Genotype ReadGenotype(JsonWalk root, string defaultName)
     {
         var format = root.Required("format").RequireString();
         if (format != FormatTag)
             throw root.Property("format").Error($"unsupported format \"{format}\"; expected \"{FormatTag}\"");
 
         string? id = null;
-        if (readId && root.Has("id"))
+        if (root.Has("id"))
         {
             var idWalk = root.Property("id");
             id = idWalk.Element.ValueKind switch

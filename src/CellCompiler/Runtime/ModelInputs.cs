@@ -18,6 +18,12 @@ public static class ModelInputs
                 throw new NotSupportedException($"input '{name}' is {metadata.ElementDataType}; only float32 inputs are supported");
             shapes.Add((name, metadata.Dimensions.Select(d => d > 0 ? (long)d : batch).ToArray()));
         }
+        // A model without any symbolic dimension has its batch size built in: never report another one.
+        var symbolic = session.InputMetadata.Values.Any(m => m.Dimensions.Any(d => d <= 0));
+        if (!symbolic && shapes.Count > 0 && shapes[0].Item2.Length > 0 && shapes[0].Item2[0] != batch)
+            throw new NotSupportedException(
+                $"input '{shapes[0].Item1}' has the fixed shape [{string.Join(", ", shapes[0].Item2)}]: " +
+                $"the model runs only at batch {shapes[0].Item2[0]}, not {batch}; pass --batch {shapes[0].Item2[0]}");
         return shapes;
     }
 

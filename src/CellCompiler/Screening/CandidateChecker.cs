@@ -71,10 +71,12 @@ public static class CandidateChecker
         return over.Count == 0 ? (CheckStatus.Ok, null) : (CheckStatus.OverBudget, string.Join("; ", over));
     }
 
+    /// <summary>Readable, and never rounds a small budget down to 0.</summary>
     private static string Format(double value) => value switch
     {
         >= 1000 => value.ToString("N0", CultureInfo.InvariantCulture),
         >= 10 => value.ToString("0.#", CultureInfo.InvariantCulture),
-        _ => value.ToString("0.###", CultureInfo.InvariantCulture),
+        >= 1 => value.ToString("0.###", CultureInfo.InvariantCulture),
+        _ => value.ToString("G3", CultureInfo.InvariantCulture),
     };
 }

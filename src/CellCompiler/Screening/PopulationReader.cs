@@ -39,7 +39,7 @@ public static class PopulationReader
     {
         try
         {
-            var genotype = GenotypeReader.Parse(utf8, origin, defaultId, allowId: true);
+            var genotype = GenotypeReader.Parse(utf8, origin, defaultId);
             return Candidate.Valid(genotype.Id ?? defaultId, genotype);
         }
         catch (InputException e)
