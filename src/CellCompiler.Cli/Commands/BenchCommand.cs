@@ -46,7 +46,9 @@ public static class BenchCommand
                 LatencyBreakdown? parts = null;
                 if (parse.GetValue(breakdown))
                 {
-                    var profile = KernelProfile.Collect(bytes, latency.BatchSizes[0], latency.Threads, latency.Warmup, latency.Runs);
+                    // The trace grows with every profiled run: a bounded number is plenty for shares.
+                    var profile = KernelProfile.Collect(bytes, latency.BatchSizes[0], latency.Threads,
+                        Math.Min(latency.Warmup, 10), Math.Min(latency.Runs, 200));
                     parts = LatencyBreakdown.FromProfile(profile, motifs);
                 }
                 result = new BenchResult(path, description, report, parts);
@@ -69,6 +71,25 @@ public static class BenchCommand
         return command;
     }
 
+    /// <summary>
+    /// A model this tool made (it carries a genotype_hash) is broken down by part too: its motif
+    /// names are read back from the hierarchical node names ("eN:motif" segments that are not primitives).
+    /// </summary>
+    private static IReadOnlySet<string>? OwnMotifs(byte[] bytes)
+    {
+        try
+        {
+            var model = OnnxFormat.ModelProto.Parser.ParseFrom(bytes);
+            if (!model.MetadataProps.Any(p => p.Key == "genotype_hash")) return null;
+            return model.Graph.Node
+                .SelectMany(n => n.Name.Split('/'))
+                .Select(segment => segment.IndexOf(':') is var colon and > 0 ? segment[(colon + 1)..] : "")
+                .Where(name => name.Length > 0 && !Primitives.IsPrimitive(name) && name is not ("concat" or "sum"))
+                .ToHashSet(StringComparer.Ordinal);
+        }
+        catch (Google.Protobuf.InvalidProtocolBufferException) { return null; }
+    }
+
     private static (byte[] Bytes, IReadOnlySet<string>? Motifs, string Description) Load(string path, Func<Skeleton> skeleton, Func<CompileOptions> options)
     {
         if (!Path.GetExtension(path).Equals(".onnx", StringComparison.OrdinalIgnoreCase))
@@ -86,7 +107,8 @@ public static class BenchCommand
             var info = new FileInfo(path);
             if (!info.Exists) throw new InputException(path, "", "file not found");
             if (info.Length > Input.Limits.MaxModelBytes) throw new InputException(path, "", "models over 2 GiB (external data) are not supported");
-            return (File.ReadAllBytes(path), null, "ONNX model");
+            var bytes = File.ReadAllBytes(path);
+            return (bytes, OwnMotifs(bytes), "ONNX model");
         }
         catch (IOException e) { throw new InputException(path, "", $"cannot read the file: {e.Message}"); }
     }

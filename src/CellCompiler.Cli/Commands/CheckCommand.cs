@@ -40,15 +40,17 @@ public static class CheckCommand
         {
             var budget = budgets.Resolve(parse);
             var measure = parse.GetValue(latency) || budget.NeedsLatency;
-            var latencySettings = measure ? latencyOptions.Resolve(parse) : null;
+            var requested = latencyOptions.Resolve(parse); // validated even when unused, so typos surface
+            var latencySettings = measure ? requested : null;
             // A latency budget is judged at batch 1, so batch 1 is always measured.
             if (latencySettings is not null && !latencySettings.BatchSizes.Contains(1))
                 latencySettings = latencySettings with { Batches = [1, .. latencySettings.BatchSizes] };
             var options = new CheckOptions(skeleton.Resolve(parse), settings.Resolve(parse), budget,
                 parse.GetValue(budgets.TrainBatch), latencySettings);
 
-            var candidates = OpenInput(parse.GetValue(input)!);
+            var (candidates, single) = OpenInput(parse.GetValue(input)!);
             var allOk = true;
+            var singleInvalid = false;
             var table = parse.GetValue(json) ? null : new CheckTable(Console.Out, measure);
             table?.WriteHeader();
             using var stdout = Console.OpenStandardOutput();
@@ -56,6 +58,7 @@ public static class CheckCommand
             {
                 var record = CandidateChecker.Check(candidate, options);
                 allOk &= record.Status == CheckStatus.Ok;
+                singleInvalid |= single && record.Status == CheckStatus.Invalid;
                 if (table is null)
                 {
                     // One whole line per candidate, flushed as soon as it is final.
@@ -70,28 +73,43 @@ public static class CheckCommand
                 }
             }
             table?.WriteSummary();
-            return allOk ? ExitCodes.Ok : ExitCodes.CandidateFailed;
+            // A single genotype file that cannot form a network is bad input, as for `compile`.
+            return singleInvalid ? ExitCodes.BadInput : allOk ? ExitCodes.Ok : ExitCodes.CandidateFailed;
         });
         return command;
     }
 
     /// <summary>
     /// A single genotype file is parsed up front (bad input: exit 2); a population is read lazily,
-    /// a bad line becoming that candidate's invalid record.
+    /// a bad line becoming that candidate's invalid record. A population is `-`, a .jsonl or .ndjson
+    /// file, or any file whose first two non-blank lines each start a JSON object.
     /// </summary>
-    private static IEnumerable<Candidate> OpenInput(string input)
+    private static (IEnumerable<Candidate> Candidates, bool Single) OpenInput(string input)
     {
         if (input == "-")
-            return PopulationReader.Read(Console.In, "<stdin>");
+            return (PopulationReader.Read(Console.In, "<stdin>"), false);
+        if (!File.Exists(input))
+            throw new InputException(input, "", Directory.Exists(input) ? "is a folder, not a file" : "file not found");
         var extension = Path.GetExtension(input).ToLowerInvariant();
-        if (extension is ".jsonl" or ".ndjson")
-        {
-            if (!File.Exists(input))
-                throw new InputException(input, "", Directory.Exists(input) ? "is a folder, not a population file" : "file not found");
-            return ReadPopulationFile(input);
-        }
+        if (extension is ".jsonl" or ".ndjson" || LooksLikeJsonLines(input))
+            return (ReadPopulationFile(input), false);
         var genotype = GenotypeReader.ReadFile(input);
-        return [Candidate.Valid(genotype.Id ?? genotype.Name, genotype)];
+        return ([Candidate.Valid(genotype.Id ?? genotype.Name, genotype)], true);
+    }
+
+    private static bool LooksLikeJsonLines(string path)
+    {
+        try
+        {
+            using var reader = new StreamReader(path);
+            var starts = 0;
+            var buffer = new char[4096];
+            var read = reader.ReadBlock(buffer, 0, buffer.Length);
+            foreach (var line in new string(buffer, 0, read).Split('\n').Select(l => l.Trim()).Where(l => l.Length > 0).Take(2))
+                if (line.StartsWith('{') && line.EndsWith('}')) starts++;
+            return starts == 2;
+        }
+        catch (IOException) { return false; }
     }
 
     private static IEnumerable<Candidate> ReadPopulationFile(string path)

@@ -39,6 +39,14 @@ public static class HumanNumber
         return value;
     }
 
-    public static long? ParsePositiveCount(ArgumentResult result) =>
-        ParsePositive(result) is { } value ? (long)Math.Round(value) : null;
+    public static long? ParsePositiveCount(ArgumentResult result)
+    {
+        if (ParsePositive(result) is not { } value) return null;
+        if (value < 1 || value > long.MaxValue / 2)
+        {
+            result.AddError($"{(result.Parent as OptionResult)?.Option.Name ?? "option"}: a count must be between 1 and {long.MaxValue / 2:N0}");
+            return null;
+        }
+        return (long)Math.Round(value);
+    }
 }

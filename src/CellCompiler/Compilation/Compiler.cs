@@ -15,7 +15,8 @@ public static class Compiler
 {
     /// <exception cref="DeadCellException">the cell's output does not depend on its input</exception>
     /// <exception cref="CompileException">the network cannot be formed or would be too large</exception>
-    public static CompiledModel Compile(Genotype genotype, Skeleton skeleton, CompileOptions? options = null)
+    /// <param name="hash">The genotype's hash when the caller has it already (hashing can be the costly part for symmetric motifs).</param>
+    public static CompiledModel Compile(Genotype genotype, Skeleton skeleton, CompileOptions? options = null, string? hash = null)
     {
         options ??= CompileOptions.Default;
         if (options.Opset is < OnnxVersions.MinOpset or > OnnxVersions.MaxOpset)
@@ -29,7 +30,7 @@ public static class Compiler
                 $"exceeds the limit of {Limits.MaxExpandedPrimitiveOps:N0} primitive ops");
 
         var liveness = Liveness.Analyse(genotype);
-        var hash = GenotypeHasher.Hash(genotype, liveness);
+        hash ??= GenotypeHasher.Hash(genotype, liveness);
         var network = Lowerer.Lower(genotype, skeleton);
         var shaped = ShapeInference.Infer(network);
         var figures = FigureCounter.Count(shaped);

@@ -23,7 +23,14 @@ public static class TrainingMemory
     }
 
     public static long EstimateBytes(ShapedNetwork net, NetworkFigures figures, int batch) =>
-        batch * ActivationBytesPerSample(net)
-        + ParameterCopies * figures.Params * sizeof(float)
-        + figures.Buffers * sizeof(float);
+        EstimateBytes(ActivationBytesPerSample(net), figures.Params, figures.Buffers, batch);
+
+    /// <summary>The formula from its parts; saturates at long.MaxValue instead of overflowing.</summary>
+    public static long EstimateBytes(long activationBytesPerSample, long parameters, long buffers, int batch)
+    {
+        var total = (Int128)batch * activationBytesPerSample
+                    + (Int128)ParameterCopies * parameters * sizeof(float)
+                    + (Int128)buffers * sizeof(float);
+        return total > long.MaxValue ? long.MaxValue : (long)total;
+    }
 }

@@ -10,19 +10,21 @@ namespace CellCompiler.Hashing;
 /// </summary>
 internal sealed class CanonicalGraph
 {
-    /// <summary>Above this many complete labellings the search stops; reached only by highly symmetric graphs.</summary>
-    public const int LeafBudget = 4096;
+    /// <summary>Complete labellings tried per motif; past it, ties are broken by the first candidate only.</summary>
+    public const int LeafBudgetPerMotif = 512;
 
     private readonly int _nodeCount;
     private readonly (int From, int To, string Label)[] _edges;
     private readonly List<(int Node, string Label)>[] _in;
     private readonly List<(int Node, string Label)>[] _out;
+    private readonly SearchBudget _budget;
     private string? _best;
     private int _leaves;
 
     /// <summary>Nodes are 0.._nodeCount-1 with 0 the input and _nodeCount-1 the output.</summary>
-    public CanonicalGraph(int nodeCount, IEnumerable<(int From, int To, string Label)> edges)
+    public CanonicalGraph(int nodeCount, IEnumerable<(int From, int To, string Label)> edges, SearchBudget budget)
     {
+        _budget = budget;
         _nodeCount = nodeCount;
         _edges = edges.ToArray();
         _in = new List<(int, string)>[nodeCount];
@@ -35,7 +37,8 @@ internal sealed class CanonicalGraph
         }
     }
 
-    public bool BudgetExceeded => _leaves > LeafBudget;
+    /// <summary>True once the search had to stop exploring ties; the certificate is then deterministic but not canonical.</summary>
+    public bool BudgetExceeded => _leaves >= LeafBudgetPerMotif || _budget.Exhausted;
 
     public string Certificate()
     {
@@ -53,14 +56,16 @@ internal sealed class CanonicalGraph
         if (cell < 0)
         {
             _leaves++;
+            _budget.Spend();
             var certificate = Describe(colours);
             if (_best is null || string.CompareOrdinal(certificate, _best) < 0) _best = certificate;
             return;
         }
         var tried = new List<int>();
-        for (var v = 0; v < _nodeCount && !BudgetExceeded; v++)
+        for (var v = 0; v < _nodeCount; v++)
         {
             if (colours[v] != cell || tried.Any(u => AreTwins(u, v))) continue;
+            if (tried.Count > 0 && BudgetExceeded) break;
             tried.Add(v);
             var next = new int[_nodeCount];
             for (var u = 0; u < _nodeCount; u++) next[u] = colours[u] * 2 + (u == v ? 0 : 1);

@@ -29,19 +29,37 @@ public static class GenotypeHasher
     /// <summary>The cell's canonical text: "none", "identity", a single op label, or a graph digest.</summary>
     public static string CanonicalForm(Genotype genotype, Liveness liveness)
     {
+        var used = UsedMotifs(genotype, liveness);
+        var budget = new SearchBudget();
         Dictionary<string, string?>? below = null;
         for (var k = 0; k < genotype.Levels.Count; k++)
         {
             var forms = new Dictionary<string, string?>(StringComparer.Ordinal);
             foreach (var motif in genotype.Levels[k].Motifs)
-                forms[motif.Name] = MotifForm(liveness.Of(k, motif.Name), genotype.Levels[k].Nodes, below);
+                if (used[k].Contains(motif.Name))
+                    forms[motif.Name] = MotifForm(liveness.Of(k, motif.Name), genotype.Levels[k].Nodes, below, budget);
             below = forms;
         }
         return below![genotype.Cell.Name] ?? Primitives.None;
     }
 
+    /// <summary>Motifs applied by a live edge on the way down from the cell: only these can matter.</summary>
+    private static HashSet<string>[] UsedMotifs(Genotype genotype, Liveness liveness)
+    {
+        var used = new HashSet<string>[genotype.Levels.Count];
+        used[genotype.TopLevel] = [genotype.Cell.Name];
+        for (var k = genotype.TopLevel; k > 0; k--)
+        {
+            used[k - 1] = new HashSet<string>(StringComparer.Ordinal);
+            foreach (var name in used[k])
+                foreach (var edge in liveness.Of(k, name).LiveEdges)
+                    if (!Primitives.IsStructural(edge.Op)) used[k - 1].Add(edge.Op);
+        }
+        return used;
+    }
+
     /// <summary>null for a dead motif; otherwise the label an edge applying this motif carries.</summary>
-    private static string? MotifForm(MotifLiveness info, int nodes, Dictionary<string, string?>? below)
+    private static string? MotifForm(MotifLiveness info, int nodes, Dictionary<string, string?>? below, SearchBudget budget)
     {
         if (!info.OutputIsLive) return null;
 
@@ -69,7 +87,7 @@ public static class GenotypeHasher
             .OrderBy(v => v == output ? int.MaxValue : v).ToList();
         if (kept.Count == 2 && edges.Count == 1) return edges[0].Label;
         var index = kept.Select((v, i) => (v, i)).ToDictionary(p => p.v, p => p.i);
-        var graph = new CanonicalGraph(kept.Count, edges.Select(e => (index[e.From], index[e.To], e.Label)));
+        var graph = new CanonicalGraph(kept.Count, edges.Select(e => (index[e.From], index[e.To], e.Label)), budget);
         var certificate = graph.Certificate();
         return "motif:" + Convert.ToHexStringLower(SHA256.HashData(Encoding.UTF8.GetBytes(certificate)));
     }

@@ -23,18 +23,70 @@ internal readonly struct JsonWalk(string origin, JsonElement element, string pat
         try
         {
             // Duplicate keys are found by RequireObject, which can name their JSON path.
-            return JsonDocument.Parse(utf8, new JsonDocumentOptions
+            var document = JsonDocument.Parse(utf8, new JsonDocumentOptions
             {
                 AllowTrailingCommas = false,
                 CommentHandling = JsonCommentHandling.Disallow,
                 MaxDepth = 16,
             });
+            try
+            {
+                RequireValidText(origin, document.RootElement, "");
+            }
+            catch
+            {
+                document.Dispose();
+                throw;
+            }
+            return document;
         }
         catch (JsonException e)
         {
             var where = e.LineNumber is { } line ? $" at line {line + 1}, column {(e.BytePositionInLine ?? 0) + 1}" : "";
             throw new InputException(origin, "", $"malformed JSON{where}: {FirstSentence(e.Message)}");
         }
+    }
+
+    /// <summary>
+    /// Every key and string must be valid Unicode (no lone surrogate escapes, no invalid UTF-8), so that
+    /// later reads cannot fail halfway through a document.
+    /// </summary>
+    private static void RequireValidText(string origin, JsonElement element, string path)
+    {
+        switch (element.ValueKind)
+        {
+            case JsonValueKind.Object:
+                foreach (var property in element.EnumerateObject())
+                {
+                    string name;
+                    try { name = property.Name; }
+                    catch (InvalidOperationException) { throw new InputException(origin, path, "a key is not valid Unicode text"); }
+                    if (HasLoneSurrogate(name)) throw new InputException(origin, path, "a key is not valid Unicode text");
+                    RequireValidText(origin, property.Value, Join(path, name));
+                }
+                break;
+            case JsonValueKind.Array:
+                var index = 0;
+                foreach (var item in element.EnumerateArray())
+                    RequireValidText(origin, item, $"{path}[{index++}]");
+                break;
+            case JsonValueKind.String:
+                string text;
+                try { text = element.GetString()!; }
+                catch (InvalidOperationException) { throw new InputException(origin, path, "the string is not valid Unicode text"); }
+                if (HasLoneSurrogate(text)) throw new InputException(origin, path, "the string is not valid Unicode text (a lone surrogate escape)");
+                break;
+        }
+    }
+
+    private static bool HasLoneSurrogate(string text)
+    {
+        for (var i = 0; i < text.Length; i++)
+        {
+            if (char.IsHighSurrogate(text[i]) && i + 1 < text.Length && char.IsLowSurrogate(text[i + 1])) { i++; continue; }
+            if (char.IsSurrogate(text[i])) return true;
+        }
+        return false;
     }
 
     private static string FirstSentence(string message)

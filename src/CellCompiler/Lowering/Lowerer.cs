@@ -58,7 +58,8 @@ public static class Lowerer
         builder.Add(new GemmOp("head/gemm", flat, classes) { OutputName = Network.DefaultOutputName });
     }
 
-    private static IReadOnlyList<string> Warnings(Genotype genotype, Liveness liveness)
+    /// <summary>Dead and unused motifs and dead nodes, each naming its JSON path.</summary>
+    public static IReadOnlyList<string> Warnings(Genotype genotype, Liveness liveness)
     {
         var warnings = new List<string>();
         for (var k = 0; k < genotype.Levels.Count; k++)

@@ -10,8 +10,15 @@ public sealed record CheckOptions(
     CompileOptions Compile,
     Budgets Budgets,
     int TrainBatch = CheckOptions.DefaultTrainBatch,
-    LatencySettings? Latency = null)
+    LatencySettings? Latency = null,
+    long? RunMemoryLimitBytes = null)
 {
+    /// <summary>
+    /// A candidate whose run would need more than this (default: a quarter of the memory available to
+    /// the process) is not run: it is reported as over budget instead of risking the machine.
+    /// </summary>
+    public long EffectiveRunMemoryLimit => RunMemoryLimitBytes ?? GC.GetGCMemoryInfo().TotalAvailableMemoryBytes / 4;
+
     public const int DefaultTrainBatch = 64;
 
     /// <summary>Latency is measured when asked for, or when a latency budget needs it.</summary>

@@ -3,7 +3,10 @@ using CellCompiler.Runtime;
 
 namespace CellCompiler.Screening;
 
-/// <summary>The result of screening one candidate. Figures are null when the candidate never compiled.</summary>
+/// <summary>
+/// The result of screening one candidate. Figures are null when the candidate never compiled.
+/// ReasonKind groups reasons for summaries (e.g. "dead cell", "over --max-params").
+/// </summary>
 public sealed record CheckRecord(
     string Id,
     string? Name,
@@ -16,4 +19,6 @@ public sealed record CheckRecord(
     long? OnnxBytes,
     IReadOnlyList<string> Warnings,
     LatencyReport? Latency,
-    double CheckMs);
+    double CheckMs,
+    bool Cached = false,
+    string? ReasonKind = null);

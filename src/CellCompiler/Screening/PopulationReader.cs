@@ -46,6 +46,11 @@ public static class PopulationReader
         {
             return Candidate.Invalid(RecoverId(utf8) ?? defaultId, e);
         }
+        catch (Exception e) when (e is InvalidOperationException or ArgumentException or FormatException)
+        {
+            // Whatever a line holds, it is that candidate's problem, never the run's.
+            return Candidate.Invalid(defaultId, new InputException(origin, "", $"unreadable line: {e.Message}"));
+        }
     }
 
     /// <summary>Keeps the user's id on an invalid line when the line is JSON enough to hold one.</summary>
@@ -57,12 +62,12 @@ public static class PopulationReader
             if (document.RootElement.ValueKind == JsonValueKind.Object && document.RootElement.TryGetProperty("id", out var id))
                 return id.ValueKind switch
                 {
-                    JsonValueKind.String when id.GetString()!.Length is > 0 and <= 256 => id.GetString(),
+                    JsonValueKind.String when id.GetString() is { Length: > 0 and <= 256 } text && !text.Any(char.IsSurrogate) => text,
                     JsonValueKind.Number => id.GetRawText(),
                     _ => null,
                 };
         }
-        catch (JsonException) { }
+        catch (Exception e) when (e is JsonException or InvalidOperationException) { }
         return null;
     }
 

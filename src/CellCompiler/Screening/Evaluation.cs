@@ -1,0 +1,21 @@
+using CellCompiler.Figures;
+
+namespace CellCompiler.Screening;
+
+/// <summary>
+/// What compiling and smoke-testing a genotype on a skeleton found, independent of budgets, names
+/// and spelling: the part of a check that the cache keeps. Failure null means the model works.
+/// </summary>
+public sealed record Evaluation(
+    CheckStatus? Failure,
+    string? FailureReason,
+    string? FailureKind,
+    int[]? OutputShape,
+    NetworkFigures? Figures,
+    long? ActivationBytesPerSample,
+    long? OnnxBytes,
+    bool SmokeTested = true)
+{
+    /// <summary>Compiled, and either passed the smoke test or was not run (see <see cref="SmokeTested"/>).</summary>
+    public bool Works => Failure is null;
+}
