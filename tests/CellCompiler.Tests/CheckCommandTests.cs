@@ -51,7 +51,8 @@ public sealed class CheckCommandTests
     private static string PopulationLine(string id) =>
         File.ReadLines(Population).Single(l => l.Contains($"\"{id}\"", StringComparison.Ordinal));
 
-    private static ProcessResult CheckJson(params string[] args) => ProcessRunner.Cellc(["check", .. args, "--json"], null, null);
+    // --ordered: records in input order (the default is completion order with parallel workers).
+    private static ProcessResult CheckJson(params string[] args) => ProcessRunner.Cellc(["check", .. args, "--json", "--ordered"], null, null);
 
     [Fact]
     public void Population_fixture_gives_one_record_per_candidate_with_the_right_statuses()
@@ -234,7 +235,7 @@ public sealed class CheckCommandTests
     public void Stdin_input_works()
     {
         // Contract section 5: INPUT `-` reads JSON Lines on stdin.
-        var result = ProcessRunner.Cellc(["check", "-", "--json"], File.ReadAllText(Population), null);
+        var result = ProcessRunner.Cellc(["check", "-", "--json", "--ordered"], File.ReadAllText(Population), null);
         Assert.Equal(1, result.ExitCode);
         var records = Records(result);
         Assert.Equal(["gen7-001", "gen7-002", "gen7-003", "gen7-004", "gen7-005", "gen7-006"],
@@ -247,7 +248,7 @@ public sealed class CheckCommandTests
     public void Stdin_input_of_good_candidates_exits_0()
     {
         var lines = string.Join("\n", new[] { "gen7-001", "gen7-004" }.Select(PopulationLine)) + "\n";
-        var result = ProcessRunner.Cellc(["check", "-", "--json"], lines, null);
+        var result = ProcessRunner.Cellc(["check", "-", "--json", "--ordered"], lines, null);
         Assert.Equal(0, result.ExitCode);
         Assert.Equal(["ok", "ok"], Records(result).Select(Status).ToList());
     }

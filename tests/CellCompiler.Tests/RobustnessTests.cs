@@ -26,7 +26,7 @@ public sealed class RobustnessTests
             Flat.Replace("{\"format\"", "{\"id\":\"a\",\"format\""),
             Flat.Replace("{\"format\"", "{\"id\":\"\\udc00\",\"format\""),
             Flat.Replace("{\"format\"", "{\"id\":\"c\",\"format\"")) + "\n";
-        var result = ProcessRunner.Cellc(["check", "-", "--json"], population, null);
+        var result = ProcessRunner.Cellc(["check", "-", "--json", "--ordered"], population, null);
         Assert.Equal(1, result.ExitCode);
         var records = result.Stdout.Split('\n', StringSplitOptions.RemoveEmptyEntries).Select(l => JsonDocument.Parse(l).RootElement).ToList();
         Assert.Equal(["a", "line-2", "c"], records.Select(r => r.GetProperty("id").GetString()));

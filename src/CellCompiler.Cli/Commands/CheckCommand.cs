@@ -1,23 +1,34 @@
 using System.CommandLine;
-using System.Text.Json;
+using System.Diagnostics;
 using CellCompiler.Cli.Options;
 using CellCompiler.Cli.Output;
 using CellCompiler.Input;
+using CellCompiler.Runtime;
 using CellCompiler.Screening;
+using Microsoft.Data.Sqlite;
 
 namespace CellCompiler.Cli.Commands;
 
-/// <summary>`cellc check`: compile each candidate, smoke-test it on ONNX Runtime, apply budgets.</summary>
+/// <summary>`cellc check`: compile each candidate, smoke-test it on ONNX Runtime, apply budgets; for whole populations too.</summary>
 public static class CheckCommand
 {
+    public const string DefaultCachePath = ".cellc/cache.db";
+
     public static Command Create()
     {
         var input = new Argument<string>("INPUT")
         {
-            Description = "A genotype file, a population file (.jsonl or .ndjson: one genotype per line), or - for JSON Lines on stdin.",
+            Description = "A genotype file, a population file (.jsonl or .ndjson, or any file of one genotype per line), or - for JSON Lines on stdin.",
         };
         var json = new Option<bool>("--json") { Description = "One JSON object per candidate per line instead of the table." };
-        var latency = new Option<bool>("--latency") { Description = "Measure CPU latency of every working candidate." };
+        var latency = new Option<bool>("--latency") { Description = "Measure CPU latency of every working candidate (never while other work of this run is running)." };
+        var output = new Option<string?>("--out") { HelpName = "FILE", Description = "Write the JSON records to FILE (whole lines, each flushed when final) and the summary to stdout." };
+        var jobs = new Option<int>("--jobs", "-j") { HelpName = "N", Description = "Parallel workers.", DefaultValueFactory = _ => Environment.ProcessorCount };
+        var ordered = new Option<bool>("--ordered") { Description = "Write results in input order (default: in completion order, each with its id)." };
+        var cachePath = new Option<string?>("--cache") { HelpName = "PATH", Description = $"Result cache (SQLite; default {DefaultCachePath} in the working folder; shared safely by parallel processes)." };
+        var noCache = new Option<bool>("--no-cache") { Description = "Neither read nor write the cache." };
+        var resume = new Option<bool>("--resume") { Description = "Continue an interrupted run: keep the records in --out and check only the candidates it lacks." };
+        var shard = new Option<string?>("--shard") { HelpName = "K/N", Description = "Check only shard K of N (0 <= K < N), chosen from each candidate's id: N shards cover the population exactly once." };
         var skeleton = new SkeletonOptions();
         var settings = new CompileSettingsOptions();
         var budgets = new BudgetOptions();
@@ -29,8 +40,8 @@ public static class CheckCommand
             "Statuses: ok, over_budget, broken, invalid. Exit 0 if all are ok, 1 otherwise, 2 on a bad command line " +
             "or a bad single genotype file.");
         command.Arguments.Add(input);
-        command.Options.Add(json);
-        command.Options.Add(latency);
+        foreach (var option in new Option[] { json, output, jobs, ordered, cachePath, noCache, resume, shard, latency })
+            command.Options.Add(option);
         skeleton.AddTo(command);
         settings.AddTo(command);
         budgets.AddTo(command);
@@ -38,6 +49,7 @@ public static class CheckCommand
 
         command.SetAction(parse =>
         {
+            var clock = Stopwatch.StartNew();
             var budget = budgets.Resolve(parse);
             var measure = parse.GetValue(latency) || budget.NeedsLatency;
             var requested = latencyOptions.Resolve(parse); // validated even when unused, so typos surface
@@ -48,53 +60,105 @@ public static class CheckCommand
             var options = new CheckOptions(skeleton.Resolve(parse), settings.Resolve(parse), budget,
                 parse.GetValue(budgets.TrainBatch), latencySettings);
 
-            var (candidates, single) = OpenInput(parse.GetValue(input)!);
-            var allOk = true;
-            var singleInvalid = false;
-            var table = parse.GetValue(json) ? null : new CheckTable(Console.Out, measure);
-            table?.WriteHeader();
+            var workerCount = parse.GetValue(jobs);
+            if (workerCount is < 1 or > 256) throw Bad("--jobs", $"must be between 1 and 256, found {workerCount}");
+            var shardText = parse.GetValue(shard);
+            var selector = shardText is null ? ShardSelector.All
+                : ShardSelector.Parse(shardText) ?? throw Bad("--shard", $"'{shardText}' is not K/N with 0 <= K < N");
+            var outPath = parse.GetValue(output);
+            if (parse.GetValue(resume) && outPath is null) throw Bad("--resume", "needs --out FILE: the records of the interrupted run");
+
+            var source = OpenInput(parse.GetValue(input)!);
+            using var cache = parse.GetValue(noCache) ? null : OpenCache(parse.GetValue(cachePath) ?? DefaultCachePath);
+            using var gate = new ExclusiveGate();
+            var checker = new CandidateChecker(options, cache, gate);
+
+            Dictionary<string, string> done = [];
             using var stdout = Console.OpenStandardOutput();
-            foreach (var candidate in candidates)
+            ResultLog? log = null;
+            if (outPath is not null)
             {
-                var record = CandidateChecker.Check(candidate, options);
-                allOk &= record.Status == CheckStatus.Ok;
-                singleInvalid |= single && record.Status == CheckStatus.Invalid;
-                if (table is null)
+                try { (log, done) = parse.GetValue(resume) ? ResultLog.Resume(outPath) : (ResultLog.Create(outPath), done); }
+                catch (Exception e) when (e is IOException or UnauthorizedAccessException)
                 {
-                    // One whole line per candidate, flushed as soon as it is final.
-                    using (var writer = JsonOutput.Writer(stdout))
-                        CheckRecordJson.Write(writer, record);
-                    stdout.WriteByte((byte)'\n');
-                    stdout.Flush();
-                }
-                else
-                {
-                    table.WriteRow(record);
+                    throw new InputException(outPath, "", $"cannot open the results file: {e.Message}");
                 }
             }
-            table?.WriteSummary();
+            else if (parse.GetValue(json))
+            {
+                log = ResultLog.ToStream(stdout);
+            }
+            using var _ = log;
+            var table = log is null ? new CheckTable(Console.Out, measure) : null;
+            var summaryOut = log is not null && outPath is null ? Console.Error : Console.Out;
+
+            table?.WriteHeader();
+            var summary = new ScreeningSummary();
+            var allOk = done.Values.All(status => status == CheckStatus.Ok.Name());
+            var singleInvalid = false;
+            LatencyReport? anyLatency = null;
+            var total = source.Total is { } lines && selector.Count == 1 ? Math.Max(0, lines - done.Count) : (long?)null;
+            using (var progress = new ProgressDisplay(total, enabled: !source.Single))
+            {
+                ScreeningRun.Execute(source.Candidates,
+                    candidate => selector.Contains(candidate.Id) && !done.ContainsKey(candidate.Id),
+                    checker.Check,
+                    new RunSettings(workerCount, parse.GetValue(ordered)),
+                    record =>
+                    {
+                        log?.Append(CheckRecordJson.ToLine(record));
+                        table?.WriteRow(record);
+                        summary.Add(record);
+                        allOk &= record.Status == CheckStatus.Ok;
+                        singleInvalid |= source.Single && record.Status == CheckStatus.Invalid;
+                        anyLatency ??= record.Latency;
+                        progress.Update(summary);
+                    });
+                progress.Update(summary, force: !Console.IsErrorRedirected);
+            }
+
+            if (!source.Single || table is not null)
+            {
+                if (table is not null) summaryOut.WriteLine();
+                if (done.Count > 0) summaryOut.WriteLine($"Resumed: {done.Count:N0} record(s) were already in {outPath}.");
+                ScreeningReport.Write(summaryOut, summary, clock.Elapsed);
+                CheckTable.WriteCautions(summaryOut, anyLatency);
+            }
             // A single genotype file that cannot form a network is bad input, as for `compile`.
             return singleInvalid ? ExitCodes.BadInput : allOk ? ExitCodes.Ok : ExitCodes.CandidateFailed;
         });
         return command;
     }
 
+    private static InputException Bad(string option, string problem) => new(SkeletonOverrides.Origin, option, problem);
+
+    private static SqliteResultCache OpenCache(string path)
+    {
+        try { return new SqliteResultCache(path); }
+        catch (Exception e) when (e is SqliteException or IOException or UnauthorizedAccessException)
+        {
+            throw new InputException(path, "", $"cannot open the cache: {e.Message} (use --cache PATH or --no-cache)");
+        }
+    }
+
+    private sealed record InputSource(IEnumerable<Candidate> Candidates, bool Single, long? Total);
+
     /// <summary>
     /// A single genotype file is parsed up front (bad input: exit 2); a population is read lazily,
     /// a bad line becoming that candidate's invalid record. A population is `-`, a .jsonl or .ndjson
-    /// file, or any file whose first two non-blank lines each start a JSON object.
+    /// file, or any file whose first two non-blank lines each hold a JSON object.
     /// </summary>
-    private static (IEnumerable<Candidate> Candidates, bool Single) OpenInput(string input)
+    private static InputSource OpenInput(string input)
     {
         if (input == "-")
-            return (PopulationReader.Read(Console.In, "<stdin>"), false);
+            return new InputSource(PopulationReader.Read(Console.In, "<stdin>"), false, null);
         if (!File.Exists(input))
             throw new InputException(input, "", Directory.Exists(input) ? "is a folder, not a file" : "file not found");
         var extension = Path.GetExtension(input).ToLowerInvariant();
         if (extension is ".jsonl" or ".ndjson" || LooksLikeJsonLines(input))
-            return (ReadPopulationFile(input), false);
+            return new InputSource(ReadPopulationFile(input), false, CountNonBlankLines(input));
         var genotype = GenotypeReader.ReadFile(input);
-        return ([Candidate.Valid(genotype.Id ?? genotype.Name, genotype)], true);
+        return new InputSource([Candidate.Valid(genotype.Id ?? genotype.Name, genotype)], true, 1);
     }
 
     private static bool LooksLikeJsonLines(string path)
@@ -102,14 +166,25 @@ public static class CheckCommand
         try
         {
             using var reader = new StreamReader(path);
-            var starts = 0;
             var buffer = new char[4096];
             var read = reader.ReadBlock(buffer, 0, buffer.Length);
-            foreach (var line in new string(buffer, 0, read).Split('\n').Select(l => l.Trim()).Where(l => l.Length > 0).Take(2))
-                if (line.StartsWith('{') && line.EndsWith('}')) starts++;
-            return starts == 2;
+            var firstLines = new string(buffer, 0, read).Split('\n').Select(l => l.Trim()).Where(l => l.Length > 0).Take(2).ToList();
+            return firstLines.Count == 2 && firstLines.All(l => l.StartsWith('{') && l.EndsWith('}'));
         }
         catch (IOException) { return false; }
+    }
+
+    /// <summary>A quick streaming count for the progress display (blank lines are not candidates).</summary>
+    private static long? CountNonBlankLines(string path)
+    {
+        try
+        {
+            long count = 0;
+            foreach (var line in File.ReadLines(path))
+                if (!string.IsNullOrWhiteSpace(line)) count++;
+            return count;
+        }
+        catch (IOException) { return null; }
     }
 
     private static IEnumerable<Candidate> ReadPopulationFile(string path)

@@ -3,12 +3,9 @@ using CellCompiler.Screening;
 
 namespace CellCompiler.Cli.Output;
 
-/// <summary>The human view of `check`: one row per candidate as it finishes, then counts by status.</summary>
+/// <summary>The human view of `check`: one row per candidate as it finishes.</summary>
 public sealed class CheckTable(TextWriter output, bool withLatency)
 {
-    private readonly Dictionary<CheckStatus, int> _counts = new();
-    private LatencyReport? _anyLatency;
-
     public void WriteHeader()
     {
         var latency = withLatency ? $" {"p50 ms",9}" : "";
@@ -17,8 +14,6 @@ public sealed class CheckTable(TextWriter output, bool withLatency)
 
     public void WriteRow(CheckRecord r)
     {
-        _counts[r.Status] = _counts.GetValueOrDefault(r.Status) + 1;
-        _anyLatency ??= r.Latency;
         var f = r.Figures;
         var latency = withLatency ? $" {(r.Latency?.AtBatch(1) is { } one ? one.P50Ms.ToString("0.000") : "-"),9}" : "";
         output.WriteLine(
@@ -27,14 +22,11 @@ public sealed class CheckTable(TextWriter output, bool withLatency)
             $"{(r.TrainMemoryBytes is { } t ? (t / 1e9).ToString("0.000") : "-"),9}{latency}  {r.Reason ?? ""}");
     }
 
-    public void WriteSummary()
+    /// <summary>The cautions that go with the figures.</summary>
+    public static void WriteCautions(TextWriter output, LatencyReport? anyLatency)
     {
-        var total = _counts.Values.Sum();
-        var parts = Enum.GetValues<CheckStatus>().Select(s => $"{s.Name()} {_counts.GetValueOrDefault(s)}");
-        output.WriteLine();
-        output.WriteLine($"{total} candidate(s): {string.Join(", ", parts)}");
         output.WriteLine("Memory figures are estimates (float32; training: activations kept at --train-batch plus 4 copies of every parameter).");
-        if (_anyLatency is { } l)
+        if (anyLatency is { } l)
             output.WriteLine($"Latency: CPU, {l.Processor}, ONNX Runtime {l.RuntimeVersion}, {l.Threads} thread(s). It does not transfer to other hardware.");
     }
 

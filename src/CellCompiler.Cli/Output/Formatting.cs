@@ -20,6 +20,10 @@ public static class Formatting
         _ => value.ToString("0.##", Invariant),
     };
 
+    public static string Duration(TimeSpan span) => span.TotalHours >= 1
+        ? $"{(int)span.TotalHours}h{span.Minutes:00}m"
+        : span.TotalMinutes >= 1 ? $"{(int)span.TotalMinutes}m{span.Seconds:00}s" : $"{span.Seconds}s";
+
     public static string Bytes(long bytes) => bytes switch
     {
         >= 1L << 30 => (bytes / (double)(1L << 30)).ToString("0.##", Invariant) + " GiB",

@@ -19,7 +19,10 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
 {
     private readonly ExclusiveGate _gate = gate ?? ExclusiveGate.None;
     private readonly string _settingsKey =
-        $"{options.Skeleton.ToJson()}|seed={options.Compile.Seed}|opset={options.Compile.Opset}|tool={Onnx.OnnxVersions.ProducerVersion}";
+        $"{options.Skeleton.ToJson()}|seed={options.Compile.Seed}|opset={options.Compile.Opset}|tool={ToolBuild}";
+
+    /// <summary>Identifies this build of the compiler, so that a cache never answers with another build's results.</summary>
+    public static readonly string ToolBuild = typeof(CandidateChecker).Assembly.ManifestModule.ModuleVersionId.ToString("N");
 
     public CheckOptions Options => options;
 

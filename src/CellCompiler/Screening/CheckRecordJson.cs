@@ -48,6 +48,7 @@ public static class CheckRecordJson
             writer.WritePropertyName("latency");
             WriteLatency(writer, latency);
         }
+        writer.WriteBoolean("cached", record.Cached);
         writer.WriteNumber("check_ms", Round(record.CheckMs));
         writer.WriteEndObject();
     }

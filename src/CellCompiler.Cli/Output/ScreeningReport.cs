@@ -1,0 +1,35 @@
+using CellCompiler.Screening;
+
+namespace CellCompiler.Cli.Output;
+
+/// <summary>The closing summary of a screening run: counts, frequent reasons, Pareto fronts.</summary>
+public static class ScreeningReport
+{
+    public static void Write(TextWriter output, ScreeningSummary summary, TimeSpan elapsed)
+    {
+        var counts = string.Join(", ", Enum.GetValues<CheckStatus>().Select(s => $"{s.Name()} {summary.Count(s):N0}"));
+        output.WriteLine($"{summary.Done:N0} candidate(s): {counts}");
+        output.WriteLine($"Checked in {Formatting.Duration(elapsed)}" +
+                         (summary.Cached > 0 ? $"; {summary.Cached:N0} answered from the cache." : "."));
+        var reasons = summary.TopReasons(5);
+        if (reasons.Count > 0)
+        {
+            output.WriteLine("Most frequent reasons:");
+            foreach (var (reason, count) in reasons)
+                output.WriteLine($"  {count,8:N0}  {reason}");
+        }
+        WriteFront(output, "params against MACs", summary.ParamsVsMacs, "MACs", y => Formatting.Scaled(y));
+        if (summary.LatencyMeasured)
+            WriteFront(output, "params against latency p50", summary.ParamsVsLatency, "p50", y => $"{y:0.000} ms");
+    }
+
+    private static void WriteFront(TextWriter output, string title, ParetoFront front, string yName, Func<double, string> formatY)
+    {
+        var points = front.Points;
+        if (points.Count == 0) return;
+        output.WriteLine($"Pareto front of ok candidates, {title} ({points.Count}):");
+        foreach (var (id, x, y) in points.Take(20))
+            output.WriteLine($"  {id,-24} params {Formatting.Scaled(x),-9} {yName} {formatY(y)}");
+        if (points.Count > 20) output.WriteLine($"  ... and {points.Count - 20} more");
+    }
+}
