@@ -28,8 +28,9 @@ public static class ScreeningReport
         var points = front.Points;
         if (points.Count == 0) return;
         output.WriteLine($"Pareto front of ok candidates, {title} ({points.Count}):");
-        foreach (var (id, x, y) in points.Take(20))
-            output.WriteLine($"  {id,-24} params {Formatting.Scaled(x),-9} {yName} {formatY(y)}");
+        foreach (var p in points.Take(20))
+            output.WriteLine($"  {p.Id,-24} params {Formatting.Scaled(p.X),-9} {yName} {formatY(p.Y)}" +
+                             (p.Ties > 0 ? $"  (and {p.Ties:N0} more with equal figures)" : ""));
         if (points.Count > 20) output.WriteLine($"  ... and {points.Count - 20} more");
     }
 }
