@@ -185,8 +185,15 @@ public sealed class ScreeningTests
         }
         var parts = Enumerable.Range(0, 3).Select(k => Records(File.ReadAllText(folder.File($"shard-{k}.jsonl")))).ToList();
         Assert.All(parts, p => Assert.NotEmpty(p));
-        var union = parts.SelectMany(p => p).ToList();
+
+        // `cellc merge` joins them in population order and finds nothing missing or duplicated.
+        var merged = folder.File("merged.jsonl");
+        var merge = ProcessRunner.Cellc(["merge", merged, .. Enumerable.Range(0, 3).Select(k => folder.File($"shard-{k}.jsonl")), "--population", population],
+            null, folder.Path);
+        Assert.Equal(0, merge.ExitCode);
+        var union = Records(File.ReadAllText(merged));
         Assert.Equal(30, union.Count);
         Assert.Equal(ById(single), ById(union));
+        Assert.Equal(Enumerable.Range(7400, 30).Select(s => $"cand-{s}"), union.Select(r => r.GetProperty("id").GetString()));
     }
 }

@@ -42,9 +42,12 @@ public sealed class ProgressDisplay : IDisposable
             Console.Error.WriteLine($"cellc check: {line}");
             return;
         }
-        // One line rewritten in place: carriage return, then clear to the end of the line.
+        // One line rewritten in place (carriage return, clear line), cut to the width so it never wraps.
+        var text = $"cellc check {line}";
+        var width = Math.Max(20, _console.Profile.Width - 1);
+        if (text.Length > width) text = text[..(width - 1)] + "~";
         _console.Write(new Text("\r\u001b[2K"));
-        _console.Markup($"[bold]cellc check[/] {Markup.Escape(line)}");
+        _console.Markup($"[bold]{Markup.Escape(text[..11])}[/]{Markup.Escape(text[11..])}");
         _liveLineShown = true;
     }
 
