@@ -10,5 +10,6 @@ root.Subcommands.Add(CheckCommand.Create());
 root.Subcommands.Add(BenchCommand.Create());
 root.Subcommands.Add(MergeCommand.Create());
 root.Subcommands.Add(SampleCommand.Create());
+root.Subcommands.Add(ScaleCommand.Create());
 
 return CommandRunner.Run(root, args);

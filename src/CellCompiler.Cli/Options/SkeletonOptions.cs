@@ -45,9 +45,9 @@ public sealed class SkeletonOptions
         return overrides.ApplyTo(skeleton);
     }
 
-    private static InputException Bad(string option, string problem) => new(SkeletonOverrides.Origin, option, problem);
+    public static InputException Bad(string option, string problem) => new(SkeletonOverrides.Origin, option, problem);
 
-    private static InputSpec? ParseInput(string? text)
+    public static InputSpec? ParseInput(string? text)
     {
         if (text is null) return null;
         var parts = text.Split('x', 'X');
@@ -57,7 +57,7 @@ public sealed class SkeletonOptions
         return new InputSpec(values[0], values[1], values[2]);
     }
 
-    private static IReadOnlyList<int>? ParseList(string? text, string option)
+    public static IReadOnlyList<int>? ParseList(string? text, string option)
     {
         if (text is null) return null;
         var parts = text.Split(',');

@@ -1,0 +1,114 @@
+using CellCompiler.Input;
+using CellCompiler.Lowering;
+
+namespace CellCompiler.Rendering;
+
+/// <summary>One node of a drawn motif: its index, whether it is dead, and whether it merges ≥2 live inputs.</summary>
+public sealed record RenderNode(int Index, bool IsInput, bool IsOutput, bool IsDead, bool IsMerge, int LiveInputs);
+
+/// <summary>One drawn edge (never a `none` edge); dead when dead-code removal drops it.</summary>
+public sealed record RenderEdge(Edge Edge, bool IsDead, EdgeKind Kind);
+
+/// <summary>What an edge applies, for styling.</summary>
+public enum EdgeKind { Identity, Convolution, Pooling, Motif }
+
+/// <summary>One motif to draw: the cell or a used motif.</summary>
+public sealed record RenderPanel(
+    Motif Motif, int Level, bool IsCell, bool OutputIsLive,
+    IReadOnlyList<RenderNode> Nodes, IReadOnlyList<RenderEdge> Edges,
+    IReadOnlyList<(string User, int Count)> UsedBy)
+{
+    public int LiveEdgeCount => Edges.Count(e => !e.IsDead);
+}
+
+/// <summary>A motif that is not drawn and why.</summary>
+public sealed record OmittedMotif(string Name, int Level, bool IsDead);
+
+/// <summary>
+/// What a picture of a genotype shows, independent of the output format: the cell and every
+/// motif it reaches through live edges (cell first, then level by level downwards, each level in
+/// file order), and the motifs left out (unused, or dead and so acting as `none`).
+/// </summary>
+public sealed record RenderModel(string GenotypeName, int LevelCount, bool CellIsLive,
+    IReadOnlyList<RenderPanel> Panels, IReadOnlyList<OmittedMotif> Omitted)
+{
+    public static RenderModel Build(Genotype genotype)
+    {
+        var liveness = Liveness.Analyse(genotype);
+        var used = UsedMotifs(genotype, liveness);
+
+        var panels = new List<RenderPanel>();
+        var omitted = new List<OmittedMotif>();
+        for (var k = genotype.TopLevel; k >= 0; k--)
+        {
+            var level = genotype.Levels[k];
+            foreach (var motif in level.Motifs)
+            {
+                var info = liveness.Of(k, motif.Name);
+                if (used[k].TryGetValue(motif.Name, out var users))
+                    panels.Add(Panel(motif, k, k == genotype.TopLevel, level.Nodes, info, liveness, users));
+                else
+                    omitted.Add(new OmittedMotif(motif.Name, k, !info.OutputIsLive));
+            }
+        }
+        return new RenderModel(genotype.Name, genotype.Levels.Count, liveness.Cell(genotype).OutputIsLive, panels, omitted);
+    }
+
+    /// <summary>
+    /// Per level, the motifs reached from the cell through live edges, each with the drawn motifs
+    /// that apply it and how often (the walk of the hasher's UsedMotifs).
+    /// </summary>
+    private static Dictionary<string, List<(string, int)>>[] UsedMotifs(Genotype genotype, Liveness liveness)
+    {
+        var used = new Dictionary<string, List<(string, int)>>[genotype.Levels.Count];
+        used[genotype.TopLevel] = new(StringComparer.Ordinal) { [genotype.Cell.Name] = [] };
+        for (var k = genotype.TopLevel; k > 0; k--)
+        {
+            used[k - 1] = new(StringComparer.Ordinal);
+            foreach (var motif in genotype.Levels[k].Motifs)
+            {
+                if (!used[k].ContainsKey(motif.Name)) continue;
+                var counts = liveness.Of(k, motif.Name).LiveEdges
+                    .Where(e => !Primitives.IsStructural(e.Op))
+                    .GroupBy(e => e.Op, StringComparer.Ordinal);
+                foreach (var group in counts)
+                {
+                    if (!used[k - 1].TryGetValue(group.Key, out var users))
+                        used[k - 1][group.Key] = users = [];
+                    users.Add((motif.Name, group.Count()));
+                }
+            }
+        }
+        return used;
+    }
+
+    private static RenderPanel Panel(Motif motif, int level, bool isCell, int nodeCount, MotifLiveness info,
+        Liveness liveness, List<(string, int)> users)
+    {
+        var live = new HashSet<int>(info.LiveEdges.Select(e => e.Index));
+        var deadNodes = new HashSet<int>(info.DeadNodes);
+        // A dead cell's input feeds nothing either: fade it with the rest.
+        if (!info.OutputIsLive) deadNodes.Add(0);
+
+        var liveInputs = new int[nodeCount];
+        foreach (var edge in info.LiveEdges) liveInputs[edge.To]++;
+
+        var nodes = Enumerable.Range(0, nodeCount)
+            .Select(i => new RenderNode(i, i == 0, i == nodeCount - 1, deadNodes.Contains(i), liveInputs[i] >= 2, liveInputs[i]))
+            .ToList();
+        var edges = motif.Edges
+            .Where(e => e.Op != Primitives.None)
+            .OrderBy(e => e.From).ThenBy(e => e.To)
+            .Select(e => new RenderEdge(e, !live.Contains(e.Index), Kind(e.Op, level)))
+            .ToList();
+        return new RenderPanel(motif, level, isCell, info.OutputIsLive, nodes, edges, users);
+    }
+
+    private static EdgeKind Kind(string op, int level) => op switch
+    {
+        Primitives.Identity => EdgeKind.Identity,
+        Primitives.MaxPool3x3 or Primitives.AvgPool3x3 => EdgeKind.Pooling,
+        _ when level > 0 => EdgeKind.Motif,
+        _ => EdgeKind.Convolution,
+    };
+}
