@@ -11,5 +11,8 @@ root.Subcommands.Add(BenchCommand.Create());
 root.Subcommands.Add(MergeCommand.Create());
 root.Subcommands.Add(SampleCommand.Create());
 root.Subcommands.Add(ScaleCommand.Create());
+root.Subcommands.Add(RenderCommand.Create());
+root.Subcommands.Add(InspectCommand.Create());
+root.Subcommands.Add(ReportCommand.Create(CellCompiler.Rendering.CellRenderer.Svg));
 
 return CommandRunner.Run(root, args);

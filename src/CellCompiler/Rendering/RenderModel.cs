@@ -19,6 +19,9 @@ public sealed record RenderPanel(
     IReadOnlyList<(string User, int Count)> UsedBy)
 {
     public int LiveEdgeCount => Edges.Count(e => !e.IsDead);
+
+    /// <summary>"cell" for the usual name, else "cell NAME"; a motif by its name.</summary>
+    public string DisplayName => !IsCell ? Motif.Name : Motif.Name == "cell" ? "cell" : $"cell {Motif.Name}";
 }
 
 /// <summary>A motif that is not drawn and why.</summary>
