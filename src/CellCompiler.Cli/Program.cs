@@ -14,5 +14,6 @@ root.Subcommands.Add(ScaleCommand.Create());
 root.Subcommands.Add(RenderCommand.Create());
 root.Subcommands.Add(InspectCommand.Create());
 root.Subcommands.Add(ReportCommand.Create(CellCompiler.Rendering.CellRenderer.Svg));
+root.Subcommands.Add(DemoCommand.Create());
 
 return CommandRunner.Run(root, args);

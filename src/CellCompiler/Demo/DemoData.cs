@@ -36,6 +36,6 @@ public static class DemoData
     public static readonly int[] PopulationMotifs = [6, 1];
 
     /// <summary>Budgets of the scenario: the team's phone app allows this much at proxy size.</summary>
-    public const long MaxParams = 250_000;
-    public const long MaxMacs = 40_000_000;
+    public const long MaxParams = 500_000;
+    public const long MaxMacs = 75_000_000;
 }

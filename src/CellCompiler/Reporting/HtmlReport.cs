@@ -77,7 +77,7 @@ public static class HtmlReport
         var page = new ReportPage(
             options.Title ?? $"Screening report: {Path.GetFileName(resultsName)}",
             resultsName,
-            options.GenotypesPath,
+            options.GenotypesDisplayName ?? options.GenotypesPath,
             options.GenotypesPath is not null && options.DrawCell is null,
             summary,
             rows,

@@ -11,6 +11,9 @@ public sealed record ReportOptions
     /// <summary>The population the results were checked from (JSON Lines genotypes), for the Pareto-front cells' pictures.</summary>
     public string? GenotypesPath { get; init; }
 
+    /// <summary>How the page names the population (default: its path).</summary>
+    public string? GenotypesDisplayName { get; init; }
+
     /// <summary>Draws one cell as an SVG document or element; without it no picture is drawn.</summary>
     public Func<Genotype, string>? DrawCell { get; init; }
 
