@@ -4,7 +4,7 @@ namespace CellCompiler.Onnx;
 /// A small deterministic generator (xoshiro256** seeded through SplitMix64, both published
 /// public-domain algorithms) so that weights do not depend on the .NET version's Random.
 /// </summary>
-internal struct SeededRandom
+public struct SeededRandom
 {
     private ulong _s0, _s1, _s2, _s3;
 
@@ -24,7 +24,7 @@ internal struct SeededRandom
         return new SeededRandom(mixed);
     }
 
-    private static ulong SplitMix(ref ulong state)
+    public static ulong SplitMix(ref ulong state)
     {
         var z = state += 0x9E3779B97F4A7C15UL;
         z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9UL;
@@ -58,6 +58,19 @@ internal struct SeededRandom
 
     /// <summary>Uniform in [0, 1) with 53 random bits.</summary>
     public double NextDouble() => (NextUInt64() >> 11) * (1.0 / (1UL << 53));
+
+    /// <summary>Uniform in [0, range) without bias (Lemire's multiply-and-reject method).</summary>
+    public ulong Below(ulong range)
+    {
+        var high = Math.BigMul(NextUInt64(), range, out var low);
+        if (low < range)
+        {
+            var threshold = (0 - range) % range;
+            while (low < threshold)
+                high = Math.BigMul(NextUInt64(), range, out low);
+        }
+        return high;
+    }
 
     /// <summary>Fills with N(0, std^2) samples (ziggurat method).</summary>
     public void FillNormal(Span<float> values, double std)

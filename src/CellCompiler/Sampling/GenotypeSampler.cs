@@ -1,3 +1,4 @@
+using CellCompiler.Onnx;
 using System.Globalization;
 using CellCompiler.Input;
 
@@ -93,7 +94,7 @@ public sealed class GenotypeSampler
     public Genotype Sample(long n, string id)
     {
         ArgumentOutOfRangeException.ThrowIfLessThan(n, 1);
-        var random = Xoshiro.ForGenotype(Seed, n);
+        var random = ForGenotype(Seed, n);
         var levels = new Level[_nodes.Length];
         for (var k = 0; k < _nodes.Length; k++)
         {
@@ -117,7 +118,7 @@ public sealed class GenotypeSampler
     }
 
     /// <summary>One op of the alphabet, or null for `none`.</summary>
-    private string? Draw(ref Xoshiro random, string[] ops)
+    private string? Draw(ref SeededRandom random, string[] ops)
     {
         if (_integerWeight)
         {
@@ -218,62 +219,12 @@ public sealed class GenotypeSampler
 
     private static int Digits(int value) => value < 10 ? 1 : value < 100 ? 2 : 3;
 
-    /// <summary>xoshiro256** seeded through SplitMix64 (both published public-domain algorithms).</summary>
-    private struct Xoshiro
+    /// <summary>An independent stream for genotype n of a seed: n is mixed in through an odd multiplier and a SplitMix pass.</summary>
+    private static SeededRandom ForGenotype(long seed, long n)
     {
-        private ulong _s0, _s1, _s2, _s3;
-
-        /// <summary>An independent stream for genotype n of a seed.</summary>
-        public static Xoshiro ForGenotype(long seed, long n)
-        {
-            var state = (ulong)seed;
-            var key = SplitMix(ref state);
-            // Mix n in through an odd multiplier and a second SplitMix pass before seeding the state.
-            state = key ^ ((ulong)n * 0xD1B54A32D192ED03UL);
-            var mixed = SplitMix(ref state);
-            var x = new Xoshiro();
-            x._s0 = SplitMix(ref mixed);
-            x._s1 = SplitMix(ref mixed);
-            x._s2 = SplitMix(ref mixed);
-            x._s3 = SplitMix(ref mixed);
-            return x;
-        }
-
-        private static ulong SplitMix(ref ulong state)
-        {
-            var z = state += 0x9E3779B97F4A7C15UL;
-            z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9UL;
-            z = (z ^ (z >> 27)) * 0x94D049BB133111EBUL;
-            return z ^ (z >> 31);
-        }
-
-        public ulong Next()
-        {
-            var result = ulong.RotateLeft(_s1 * 5, 7) * 9;
-            var t = _s1 << 17;
-            _s2 ^= _s0;
-            _s3 ^= _s1;
-            _s1 ^= _s2;
-            _s0 ^= _s3;
-            _s2 ^= t;
-            _s3 = ulong.RotateLeft(_s3, 45);
-            return result;
-        }
-
-        /// <summary>Uniform in [0, 1) with 53 random bits.</summary>
-        public double NextDouble() => (Next() >> 11) * (1.0 / (1UL << 53));
-
-        /// <summary>Uniform in [0, range) without bias (Lemire's multiply-and-reject method).</summary>
-        public ulong Below(ulong range)
-        {
-            var high = Math.BigMul(Next(), range, out var low);
-            if (low < range)
-            {
-                var threshold = (0 - range) % range;
-                while (low < threshold)
-                    high = Math.BigMul(Next(), range, out low);
-            }
-            return high;
-        }
+        var state = (ulong)seed;
+        var key = SeededRandom.SplitMix(ref state);
+        state = key ^ ((ulong)n * 0xD1B54A32D192ED03UL);
+        return new SeededRandom(SeededRandom.SplitMix(ref state));
     }
 }

@@ -17,7 +17,7 @@ public static class PopulationReader
         var buffer = new StringBuilder();
         while (true)
         {
-            var (complete, tooLong) = ReadBoundedLine(reader, buffer);
+            var (complete, tooLong) = BoundedLines.Read(reader, buffer, Limits.MaxJsonBytes);
             if (!complete && buffer.Length == 0 && !tooLong) yield break;
             lineNumber++;
             var defaultId = $"line-{lineNumber}";
@@ -71,27 +71,4 @@ public static class PopulationReader
         return null;
     }
 
-    /// <summary>Reads up to a newline into <paramref name="buffer"/>; past the limit, skips the rest of the line.</summary>
-    private static (bool Complete, bool TooLong) ReadBoundedLine(TextReader reader, StringBuilder buffer)
-    {
-        buffer.Clear();
-        var tooLong = false;
-        while (true)
-        {
-            var c = reader.Read();
-            if (c < 0) return (false, tooLong);
-            if (c == '\n')
-            {
-                if (buffer.Length > 0 && buffer[^1] == '\r') buffer.Length--;
-                return (true, tooLong);
-            }
-            if (tooLong) continue;
-            buffer.Append((char)c);
-            if (buffer.Length > Limits.MaxJsonBytes)
-            {
-                tooLong = true;
-                buffer.Clear();
-            }
-        }
-    }
 }

@@ -178,7 +178,7 @@ public static class ShardMerger
             while (true)
             {
                 bool complete, tooLong;
-                try { (complete, tooLong) = ReadBoundedLine(reader, buffer); }
+                try { (complete, tooLong) = BoundedLines.Read(reader, buffer, Limits.MaxJsonBytes); }
                 catch (Exception e) when (e is IOException or UnauthorizedAccessException)
                 {
                     throw new InputException(path, "", $"cannot read the file: {e.Message}");
@@ -222,29 +222,6 @@ public static class ShardMerger
         return PopulationReader.Parse(utf8, origin, defaultId).Id;
     }
 
-    /// <summary>The line splitting of <see cref="PopulationReader"/>: "\n" ends a line, a "\r" before it is dropped, a line past the limit is skipped.</summary>
-    private static (bool Complete, bool TooLong) ReadBoundedLine(TextReader reader, StringBuilder buffer)
-    {
-        buffer.Clear();
-        var tooLong = false;
-        while (true)
-        {
-            var c = reader.Read();
-            if (c < 0) return (false, tooLong);
-            if (c == '\n')
-            {
-                if (buffer.Length > 0 && buffer[^1] == '\r') buffer.Length--;
-                return (true, tooLong);
-            }
-            if (tooLong) continue;
-            buffer.Append((char)c);
-            if (buffer.Length > Limits.MaxJsonBytes)
-            {
-                tooLong = true;
-                buffer.Clear();
-            }
-        }
-    }
 
     /// <summary>
     /// The id of one shard line when it is a JSON object holding a non-empty string `id` (once), else
