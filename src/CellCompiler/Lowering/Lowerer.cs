@@ -75,7 +75,7 @@ public static class Lowerer
                     .ToList();
                 if (k < genotype.TopLevel && !usedAbove)
                     warnings.Add($"{path}: motif '{motif.Name}' is never used");
-                else if (!info.OutputIsLive)
+                else if (!info.OutputIsLive && k < genotype.TopLevel)
                     warnings.Add($"{path}: motif '{motif.Name}' is dead (its output does not depend on its input); its uses lower to none");
                 else if (touched.Count > 0)
                     warnings.Add($"{path}: node(s) {string.Join(", ", touched)} are dead; their edges are removed");

@@ -42,12 +42,15 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
 
         byte[]? model = null;
         var evaluation = cache?.FindEvaluation(key);
+        if (evaluation?.Figures is null) evaluation = null; // entries of older builds without figures are not trusted
         var cached = evaluation is not null;
         if (evaluation is null || (!evaluation.SmokeTested && !OverStaticBudget(evaluation)))
         {
             cached = false;
             (evaluation, model) = _gate.Shared(() => Evaluate(genotype, hash));
-            cache?.StoreEvaluation(key, evaluation);
+            // Only networks that compiled are cached: a compile failure's reason names this spelling's
+            // own JSON paths (every dead cell has the same hash), and finding it again is cheap.
+            if (evaluation.Figures is not null) cache?.StoreEvaluation(key, evaluation);
         }
         if (!evaluation.Works)
             return Failed(candidate.Id, genotype.Name, hash, evaluation.Failure!.Value, evaluation.FailureReason!, evaluation.FailureKind, warnings, clock, cached);
