@@ -47,6 +47,10 @@ public static class CommandRunner
             case OutputException output:
                 Console.Error.WriteLine($"cellc: error: {output.Message}");
                 return ExitCodes.BadInput;
+            case IOException or UnauthorizedAccessException:
+                // The machine, not the candidate: a full disk, a vanished folder, a permission.
+                Console.Error.WriteLine($"cellc: error: {e.Message}");
+                return ExitCodes.BadInput;
             default:
                 // A bug, not bad input: say so plainly, still without a stack trace.
                 Console.Error.WriteLine($"cellc: internal error ({e.GetType().Name}): {e.Message}");

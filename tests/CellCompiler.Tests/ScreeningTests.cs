@@ -151,7 +151,29 @@ public sealed class ScreeningTests
         var before = File.ReadAllText(output);
         var again = ProcessRunner.Cellc(["check", population, "--out", output, "--resume", "--no-cache"], null, folder.Path);
         Assert.Equal(before, File.ReadAllText(output));
-        Assert.Contains("0 candidate(s)", again.Stdout);
+        // Nothing was checked again, and the summary still covers the 5 records already there.
+        Assert.Contains("Resumed: 5 record(s)", again.Stdout);
+        Assert.Contains("5 candidate(s):", again.Stdout);
+    }
+
+    [Fact]
+    public void ResumingWithOtherSettingsOrWritingOverTheInputIsRefused()
+    {
+        using var folder = new TempFolder();
+        var population = folder.Write("pop.jsonl", Population(3, 7500));
+        var output = folder.File("r.jsonl");
+        ProcessRunner.Cellc(["check", population, "--out", output, "--no-cache"], null, folder.Path);
+        var before = File.ReadAllText(output);
+
+        var other = ProcessRunner.Cellc(["check", population, "--out", output, "--resume", "--no-cache", "--skeleton", "full"], null, folder.Path);
+        Assert.Equal(2, other.ExitCode);
+        Assert.Contains("other settings (skeleton differ", other.Stderr);
+        Assert.Equal(before, File.ReadAllText(output));
+
+        var overInput = ProcessRunner.Cellc(["check", population, "--out", population, "--no-cache"], null, folder.Path);
+        Assert.Equal(2, overInput.ExitCode);
+        Assert.Contains("is the input file", overInput.Stderr);
+        Assert.Equal(3, File.ReadAllLines(population).Length);
     }
 
     [Fact]

@@ -67,18 +67,36 @@ public static class CheckCommand
                 : ShardSelector.Parse(shardText) ?? throw Bad("--shard", $"'{shardText}' is not K/N with 0 <= K < N");
             var outPath = parse.GetValue(output);
             if (parse.GetValue(resume) && outPath is null) throw Bad("--resume", "needs --out FILE: the records of the interrupted run");
+            var inputPath = parse.GetValue(input)!;
+            if (outPath is not null && inputPath != "-" && SameFile(outPath, inputPath))
+                throw Bad("--out", $"'{outPath}' is the input file; the results must go to another file");
+            if (parse.GetValue(noCache) && parse.GetValue(cachePath) is not null)
+                throw Bad("--no-cache", "cannot be combined with --cache PATH; choose one");
 
-            var source = OpenInput(parse.GetValue(input)!);
+            var source = OpenInput(inputPath);
             using var cache = parse.GetValue(noCache) ? null : OpenCache(parse.GetValue(cachePath) ?? DefaultCachePath);
             using var gate = new ExclusiveGate();
             var checker = new CandidateChecker(options, cache, gate);
 
-            Dictionary<string, string> done = [];
+            Dictionary<string, PreviousRecord> done = [];
             using var stdout = Console.OpenStandardOutput();
             ResultLog? log = null;
             if (outPath is not null)
             {
-                try { (log, done) = parse.GetValue(resume) ? ResultLog.Resume(outPath) : (ResultLog.Create(outPath), done); }
+                var fingerprint = RunFingerprint.Of(inputPath, options, selector);
+                try
+                {
+                    if (parse.GetValue(resume))
+                    {
+                        RunFingerprint.RequireSame(outPath, fingerprint);
+                        (log, done) = ResultLog.Resume(outPath);
+                    }
+                    else
+                    {
+                        log = ResultLog.Create(outPath);
+                    }
+                    RunFingerprint.Write(outPath, fingerprint);
+                }
                 catch (Exception e) when (e is IOException or UnauthorizedAccessException)
                 {
                     throw new InputException(outPath, "", $"cannot open the results file: {e.Message}");
@@ -94,7 +112,8 @@ public static class CheckCommand
 
             table?.WriteHeader();
             var summary = new ScreeningSummary();
-            var allOk = done.Values.All(status => status == CheckStatus.Ok.Name());
+            foreach (var previous in done.Values) summary.AddPrevious(previous);
+            var allOk = done.Values.All(previous => previous.Status == CheckStatus.Ok.Name());
             var singleInvalid = false;
             LatencyReport? anyLatency = null;
             var total = source.Total is { } lines && selector.Count == 1 ? Math.Max(0, lines - done.Count) : (long?)null;
@@ -120,7 +139,7 @@ public static class CheckCommand
             if (!source.Single || table is not null)
             {
                 if (table is not null) summaryOut.WriteLine();
-                if (done.Count > 0) summaryOut.WriteLine($"Resumed: {done.Count:N0} record(s) were already in {outPath}.");
+                if (done.Count > 0) summaryOut.WriteLine($"Resumed: {done.Count:N0} record(s) were already in {outPath}; the summary covers them too.");
                 ScreeningReport.Write(summaryOut, summary, clock.Elapsed);
                 CheckTable.WriteCautions(summaryOut, anyLatency);
             }
@@ -131,6 +150,9 @@ public static class CheckCommand
     }
 
     private static InputException Bad(string option, string problem) => new(SkeletonOverrides.Origin, option, problem);
+
+    private static bool SameFile(string a, string b) =>
+        string.Equals(Path.GetFullPath(a), Path.GetFullPath(b), StringComparison.Ordinal);
 
     private static SqliteResultCache OpenCache(string path)
     {

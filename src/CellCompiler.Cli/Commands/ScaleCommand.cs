@@ -60,11 +60,15 @@ public static class ScaleCommand
                 Reduction: parse.GetValue(reduction));
             var widthList = ParseDoubles(parse.GetValue(widths), "--width-mult");
             var cellList = SkeletonOptions.ParseList(parse.GetValue(cells), "--cells") ?? [];
+            // Two skeleton files of the same name would give two targets of one label (and one file name).
+            bases = bases.Select((b, i) => bases.Count(o => o.Label == b.Label) > 1 ? (Label: $"{b.Label}#{i + 1}", b.Skeleton) : b).ToList();
             var targets = CellScaler.Targets(bases, widthList, cellList, common);
             if (targets.Count > 64) throw SkeletonOptions.Bad("--to", $"{targets.Count} targets; at most 64 per run");
             var batch = parse.GetValue(trainBatch);
             if (batch is < 1 or > 1_000_000) throw SkeletonOptions.Bad("--train-batch", "must be between 1 and 1000000");
             var measure = parse.GetValue(latency) ? latencyOptions.Resolve(parse) : null;
+            if (measure is not null && !measure.BatchSizes.SequenceEqual([1]))
+                throw SkeletonOptions.Bad("--batch", "scale measures latency at batch 1 only; use `cellc bench` for other batch sizes");
 
             var folder = parse.GetValue(outDir);
             if (folder is not null && !Directory.Exists(folder))

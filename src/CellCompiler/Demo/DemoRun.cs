@@ -32,7 +32,7 @@ public static class DemoRun
     public static DemoResult Run(string folder, Action<string>? progress = null)
     {
         var clock = Stopwatch.StartNew();
-        var target = Path.GetFullPath(folder);
+        var target = Path.TrimEndingDirectorySeparator(Path.GetFullPath(folder));
         RequireReplaceable(target);
         var building = $"{target}.building-{Environment.ProcessId}";
         if (Directory.Exists(building)) Directory.Delete(building, recursive: true);
@@ -129,6 +129,9 @@ public static class DemoRun
     {
         if (File.Exists(target))
             throw new InputException(target, "", "is a file; the demo needs a folder");
+        var here = Path.TrimEndingDirectorySeparator(Path.GetFullPath(Environment.CurrentDirectory)) + Path.DirectorySeparatorChar;
+        if (here.StartsWith(target + Path.DirectorySeparatorChar, StringComparison.Ordinal))
+            throw new InputException(target, "", "is the current folder or holds it; the demo replaces its folder whole, so choose a folder below this one");
         if (Directory.Exists(target) && Directory.EnumerateFileSystemEntries(target).Any() && !File.Exists(Path.Combine(target, Marker)))
             throw new InputException(target, "", "exists and was not made by `cellc demo`; choose another folder with --dir");
     }

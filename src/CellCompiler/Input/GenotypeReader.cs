@@ -62,6 +62,7 @@ public static partial class GenotypeReader
                 _ => throw idWalk.Error($"expected a string or a number, found {JsonWalk.Describe(idWalk.Element)}"),
             };
             if (id.Length == 0 || id.Length > 256) throw idWalk.Error("an id must have 1 to 256 characters");
+            if (id.Any(char.IsControl)) throw idWalk.Error("an id may not hold control characters");
         }
 
         var name = id ?? defaultName;
@@ -70,6 +71,7 @@ public static partial class GenotypeReader
             var nameWalk = root.Property("name");
             name = nameWalk.RequireString();
             if (name.Length == 0 || name.Length > 256) throw nameWalk.Error("a name must have 1 to 256 characters");
+            if (name.Any(char.IsControl)) throw nameWalk.Error("a name may not hold control characters");
         }
 
         var levelsWalk = root.Required("levels");

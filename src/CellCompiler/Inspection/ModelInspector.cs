@@ -16,7 +16,8 @@ public static class ModelInspector
     /// <summary>Ops that multiply-accumulate but that the section-4 rules leave out of the MACs total.</summary>
     private static readonly HashSet<string> MacOpsOutsideRules = new(StringComparer.Ordinal)
     {
-        "Conv", "Gemm", "MatMul",   // outside the default domain only (e.g. a layout-specific Conv)
+        "Conv", "Gemm",             // outside the default domain only (e.g. a layout-specific Conv)
+        "MatMul",                   // section 4 counts Conv and Gemm only
         "ConvTranspose", "ConvInteger", "QLinearConv", "MatMulInteger", "QLinearMatMul", "DeformConv",
         "Einsum", "LSTM", "GRU", "RNN", "Attention", "MultiHeadAttention", "FusedConv", "FusedGemm",
         "FusedMatMul", "NhwcConv",
@@ -58,7 +59,7 @@ public static class ModelInspector
         {
             var key = OpKey(node);
             opCounts[key] = opCounts.GetValueOrDefault(key) + 1;
-            var counted = IsDefaultDomain(node.Domain) && node.OpType is ("Conv" or "Gemm" or "MatMul");
+            var counted = IsDefaultDomain(node.Domain) && node.OpType is ("Conv" or "Gemm");
             if (!counted && MacOpsOutsideRules.Contains(node.OpType))
                 outside[key] = outside.GetValueOrDefault(key) + 1;
             foreach (var subgraph in OnnxAttributes.Subgraphs(node))
@@ -86,7 +87,7 @@ public static class ModelInspector
             notes.Add($"{subgraphNodes} node(s) inside subgraphs (If/Loop/Scan bodies) are not in the op counts or MACs");
         if (outside.Count > 0)
             notes.Add($"{string.Join(", ", outside.Select(kv => $"{kv.Key} ({kv.Value})"))} also multiply-accumulate, " +
-                      "but section 4 counts only Conv, Gemm and MatMul: their MACs are not in the total");
+                      "but section 4 counts only Conv and Gemm: their MACs are not in the total");
         if (coverage.Inferred > 0)
             notes.Add($"{coverage.Inferred} tensor shape(s) the model does not state were propagated by cellc along the graph");
 
@@ -195,7 +196,7 @@ public static class ModelInspector
         return (parameters, buffers, constants, elements, external);
     }
 
-    /// <summary>MACs per sample of Conv, Gemm and MatMul (against a 2-D matrix) in the default domain.</summary>
+    /// <summary>MACs per sample of Conv and Gemm in the default domain (contract section 4).</summary>
     private static (long Known, List<UncountedNode> NotComputed) CountMacs(GraphProto graph, ShapeTable shapes)
     {
         long known = 0;
@@ -203,14 +204,13 @@ public static class ModelInspector
         for (var index = 0; index < graph.Node.Count; index++)
         {
             var node = graph.Node[index];
-            if (!IsDefaultDomain(node.Domain) || node.OpType is not ("Conv" or "Gemm" or "MatMul")) continue;
+            if (!IsDefaultDomain(node.Domain) || node.OpType is not ("Conv" or "Gemm")) continue;
             var name = node.Name.Length > 0 ? node.Name : $"#{index} ({node.OpType} -> {string.Join(", ", node.Output)})";
             Dim[]? Shape(IList<string> names, int i) => i < names.Count ? shapes[names[i]] : null;
             var (macs, reason) = node.OpType switch
             {
                 "Conv" => ConvMacs(Shape(node.Input, 1), Shape(node.Output, 0)),
-                "Gemm" => GemmMacs(node, Shape(node.Input, 0), Shape(node.Input, 1), Shape(node.Output, 0)),
-                _ => MatMulMacs(Shape(node.Input, 0), Shape(node.Input, 1), Shape(node.Output, 0)),
+                _ => GemmMacs(node, Shape(node.Input, 0), Shape(node.Input, 1), Shape(node.Output, 0)),
             };
             if (macs is { } m)
             {
@@ -262,20 +262,4 @@ public static class ModelInspector
         return (null, $"the matrix shapes are not known (A {Text(a)}, B {Text(b)})");
     });
 
-    /// <summary>
-    /// MatMul against a 2-D matrix [K, M]: K * M per row, times the rows of one sample (the first
-    /// input's dimensions between the batch and the last). A product of two activations is not counted.
-    /// </summary>
-    private static (long?, string?) MatMulMacs(Dim[]? a, Dim[]? b, Dim[]? output) => Guard(() =>
-    {
-        if (b is null) return (null, "the second input's shape is not known");
-        if (b.Length != 2)
-            return (null, $"the second input has shape {Text(b)}: section 4 counts MatMul only against a 2-D matrix");
-        if (KnownProduct(b) is not { } weights) return (null, $"the second input's shape is not known ({Text(b)})");
-        long? rows = a is not null
-            ? a.Length <= 2 ? 1 : KnownProduct(a[1..^1])
-            : output is not null ? output.Length <= 2 ? 1 : KnownProduct(output[1..^1]) : null;
-        if (rows is null) return (null, $"the first input's shape is not known beyond the batch ({Text(a)})");
-        return (checked(rows.Value * weights), null);
-    });
 }

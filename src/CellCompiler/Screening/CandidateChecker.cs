@@ -35,40 +35,24 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         if (candidate.Genotype is not { } genotype)
             return Failed(candidate.Id, null, null, CheckStatus.Invalid, candidate.Error!.Message, "invalid: " + Kind(candidate.Error.Problem), [], clock);
 
-        var liveness = Liveness.Analyse(genotype);
-        var hash = GenotypeHasher.Hash(genotype, liveness);
-        var warnings = Lowerer.Warnings(genotype, liveness);
-        var key = $"{hash}|{_settingsKey}";
-
-        byte[]? model = null;
-        var evaluation = cache?.FindEvaluation(key);
-        if (evaluation?.Figures is null) evaluation = null; // entries of older builds without figures are not trusted
-        var cached = evaluation is not null;
-        if (evaluation is null || (!evaluation.SmokeTested && !OverStaticBudget(evaluation)))
-        {
-            cached = false;
-            (evaluation, model) = _gate.Shared(() => Evaluate(genotype, hash));
-            // Only networks that compiled are cached: a compile failure's reason names this spelling's
-            // own JSON paths (every dead cell has the same hash), and finding it again is cheap.
-            if (evaluation.Figures is not null) cache?.StoreEvaluation(key, evaluation);
-        }
+        // Everything but the latency measurement is shared work; the measurement waits until none runs.
+        var prepared = _gate.Shared(() => Prepare(genotype));
+        var (hash, warnings, evaluation, cached, model, latencyKey) = prepared;
         if (!evaluation.Works)
             return Failed(candidate.Id, genotype.Name, hash, evaluation.Failure!.Value, evaluation.FailureReason!, evaluation.FailureKind, warnings, clock, cached);
 
         var figures = evaluation.Figures!;
         var trainMemory = TrainMemory(evaluation);
         LatencyReport? latency = null;
-        if (evaluation.SmokeTested && options.EffectiveLatency is { } settings)
+        if (latencyKey is not null && options.EffectiveLatency is { } settings)
         {
-            var latencyKey = $"{key}|{LatencyKey(settings)}";
             latency = cache?.FindLatency(latencyKey);
             if (latency is null)
             {
                 cached = false;
                 try
                 {
-                    model ??= Compiler.Compile(genotype, options.Skeleton, options.Compile, hash).OnnxBytes;
-                    var bytes = model;
+                    var bytes = model!;
                     latency = _gate.Exclusive(() => LatencyMeter.Measure(bytes, settings));
                 }
                 catch (Exception e)
@@ -91,6 +75,42 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         }
         return new CheckRecord(candidate.Id, genotype.Name, hash, status, reason, evaluation.OutputShape, figures,
             trainMemory, evaluation.OnnxBytes, warnings, latency, clock.Elapsed.TotalMilliseconds, cached, kind);
+    }
+
+    private sealed record Prepared(string Hash, IReadOnlyList<string> Warnings, Evaluation Evaluation, bool Cached, byte[]? Model, string? LatencyKey);
+
+    /// <summary>
+    /// Hash, cache look-up, compile and smoke test; and when latency is to be measured and is not in
+    /// the cache, the model bytes for it, compiled here so that no compile overlaps a measurement.
+    /// </summary>
+    private Prepared Prepare(Input.Genotype genotype)
+    {
+        var liveness = Liveness.Analyse(genotype);
+        var hash = GenotypeHasher.Hash(genotype, liveness);
+        var warnings = Lowerer.Warnings(genotype, liveness);
+        var key = $"{hash}|{_settingsKey}";
+
+        byte[]? model = null;
+        var evaluation = cache?.FindEvaluation(key);
+        if (evaluation?.Figures is null) evaluation = null; // entries of older builds without figures are not trusted
+        var cached = evaluation is not null;
+        if (evaluation is null || (!evaluation.SmokeTested && !OverStaticBudget(evaluation)))
+        {
+            cached = false;
+            (evaluation, model) = Evaluate(genotype, hash);
+            // Only networks that compiled are cached: a compile failure's reason names this spelling's
+            // own JSON paths (every dead cell has the same hash), and finding it again is cheap.
+            if (evaluation.Figures is not null) cache?.StoreEvaluation(key, evaluation);
+        }
+
+        string? latencyKey = null;
+        if (evaluation.Works && evaluation.SmokeTested && options.EffectiveLatency is { } settings)
+        {
+            latencyKey = $"{key}|{LatencyKey(settings)}";
+            if (cache?.FindLatency(latencyKey) is null)
+                model ??= Compiler.Compile(genotype, options.Skeleton, options.Compile, hash).OnnxBytes;
+        }
+        return new Prepared(hash, warnings, evaluation, cached, model, latencyKey);
     }
 
     private long TrainMemory(Evaluation evaluation) =>

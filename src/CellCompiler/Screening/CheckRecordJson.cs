@@ -17,6 +17,7 @@ public static class CheckRecordJson
         WriteStringOrNull(writer, "hash", record.Hash);
         writer.WriteString("status", record.Status.Name());
         WriteStringOrNull(writer, "reason", record.Reason);
+        WriteStringOrNull(writer, "reason_kind", record.ReasonKind);
         if (record.OutputShape is { } shape)
         {
             writer.WriteStartArray("output_shape");

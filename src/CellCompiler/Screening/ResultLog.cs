@@ -28,12 +28,13 @@ public sealed class ResultLog : IDisposable
         new(new FileStream(path, FileMode.Create, FileAccess.Write, FileShare.Read), ownsStream: true);
 
     /// <summary>
-    /// Reopens a results file to continue it: cuts off a partial last line and returns the id and
-    /// status of every complete record; those candidates must not be checked again.
+    /// Reopens a results file to continue it: cuts off a partial last line and returns what every
+    /// complete record says (a line counts only with both an id and a status); those candidates
+    /// must not be checked again.
     /// </summary>
-    public static (ResultLog Log, Dictionary<string, string> Done) Resume(string path)
+    public static (ResultLog Log, Dictionary<string, PreviousRecord> Done) Resume(string path)
     {
-        var done = new Dictionary<string, string>(StringComparer.Ordinal);
+        var done = new Dictionary<string, PreviousRecord>(StringComparer.Ordinal);
         if (!File.Exists(path)) return (Create(path), done);
         var stream = new FileStream(path, FileMode.Open, FileAccess.ReadWrite, FileShare.Read);
         long endOfLastLine = 0, position = 0;
@@ -50,7 +51,7 @@ public sealed class ResultLog : IDisposable
                     line.WriteByte(buffer[i]);
                     continue;
                 }
-                if (IdAndStatus(line.GetBuffer().AsSpan(0, (int)line.Length)) is ({ } id, var status)) done[id] = status ?? "";
+                if (PreviousRecord.Parse(line.GetBuffer().AsSpan(0, (int)line.Length)) is { } record) done[record.Id] = record;
                 line.SetLength(0);
                 endOfLastLine = position;
             }
@@ -58,28 +59,6 @@ public sealed class ResultLog : IDisposable
         stream.SetLength(endOfLastLine);
         stream.Seek(endOfLastLine, SeekOrigin.Begin);
         return (new ResultLog(stream, ownsStream: true), done);
-    }
-
-    private static (string? Id, string? Status) IdAndStatus(ReadOnlySpan<byte> line)
-    {
-        string? id = null, status = null;
-        try
-        {
-            var reader = new Utf8JsonReader(line);
-            if (!reader.Read() || reader.TokenType != JsonTokenType.StartObject) return (null, null);
-            while (reader.Read() && reader.TokenType == JsonTokenType.PropertyName)
-            {
-                var isId = reader.ValueTextEquals("id");
-                var isStatus = reader.ValueTextEquals("status");
-                reader.Read();
-                if (isId && reader.TokenType == JsonTokenType.String) id = reader.GetString();
-                else if (isStatus && reader.TokenType == JsonTokenType.String) status = reader.GetString();
-                else reader.Skip();
-                if (id is not null && status is not null) break;
-            }
-        }
-        catch (JsonException) { }
-        return (id, status);
     }
 
     /// <summary>Writes one record as one whole line in a single write, then flushes it.</summary>
@@ -101,8 +80,18 @@ public sealed class ResultLog : IDisposable
 
     public void Dispose()
     {
-        if (_stream is FileStream file) file.Flush(flushToDisk: true);
-        else _stream.Flush();
-        if (_ownsStream) _stream.Dispose();
+        try
+        {
+            if (_stream is FileStream file) file.Flush(flushToDisk: true);
+            else _stream.Flush();
+        }
+        catch (IOException)
+        {
+            // A write already failed (e.g. a full disk) and was reported; do not hide it behind this one.
+        }
+        finally
+        {
+            if (_ownsStream) _stream.Dispose();
+        }
     }
 }

@@ -18,6 +18,26 @@ public sealed class ScreeningSummary
     public IReadOnlyList<(string Reason, long Count)> TopReasons(int count) =>
         _reasons.OrderByDescending(kv => kv.Value).ThenBy(kv => kv.Key, StringComparer.Ordinal).Take(count).Select(kv => (kv.Key, kv.Value)).ToList();
 
+    /// <summary>Counts a record written by an earlier, interrupted run of the same screening.</summary>
+    public void AddPrevious(PreviousRecord record)
+    {
+        var status = Enum.GetValues<CheckStatus>().First(s => s.Name() == record.Status);
+        Done++;
+        _counts[status] = Count(status) + 1;
+        if (status != CheckStatus.Ok)
+        {
+            var kind = record.ReasonKind ?? record.Status;
+            _reasons[kind] = _reasons.GetValueOrDefault(kind) + 1;
+            return;
+        }
+        if (record.Params is { } p && record.Macs is { } m) ParamsVsMacs.Add(record.Id, p, m);
+        if (record.Params is { } q && record.LatencyMs is { } l)
+        {
+            LatencyMeasured = true;
+            ParamsVsLatency.Add(record.Id, q, l);
+        }
+    }
+
     public void Add(CheckRecord record)
     {
         Done++;

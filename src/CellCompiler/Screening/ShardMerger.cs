@@ -47,7 +47,8 @@ public sealed record MergeReport(
     /// problem: it is a record that a killed shard run lost (the only sign of it without a population).
     /// </summary>
     public bool Clean =>
-        Missing.Count == 0 && Duplicates.Count == 0 && MalformedCount == 0 && Partial.Count == 0 && Unexpected.Count == 0;
+        Missing.Count == 0 && Duplicates.Count == 0 && MalformedCount == 0 && Partial.Count == 0 && Unexpected.Count == 0
+        && PopulationDuplicates.Count == 0;
 }
 
 /// <summary>
