@@ -404,13 +404,7 @@ public sealed class BadInputTests
     [Fact]
     public void Whole_network_over_the_op_limit_exits_2_before_building_anything()
     {
-        // Level 0: one 64-node motif with all 2,016 forward edges (2,016 ops). Level 1: the cell applies
-        // it on 30 edges, 60,480 ops per cell, within the per-cell limit; the proxy skeleton stacks
-        // 3 cells, 181,440 ops, over the contract's 100,000 for the fully expanded network.
-        var full = string.Join(",", from j in Enumerable.Range(1, 63) from i in Enumerable.Range(0, j) select $"[{i},{j},\"conv1x1\"]");
-        var uses = string.Join(",", Enumerable.Range(1, 30).Select(j => $"[{j - 1},{j},\"big\"]"));
-        var json = "{\"format\":\"genotype/1\",\"levels\":[{\"nodes\":64,\"motifs\":{\"big\":{\"edges\":[" + full +
-                   "]}}},{\"nodes\":31,\"motifs\":{\"cell\":{\"edges\":[" + uses + "]}}}]}";
+        var json = HostileGenotypes.OverTheNetworkOpLimit();
         using var folder = new TempFolder();
         var path = folder.Write("huge.json", json);
         var output = folder.File("huge.onnx");

@@ -60,11 +60,7 @@ public sealed class RobustnessTests
     [Fact]
     public void ASingleGenotypeThatCannotFormANetworkExits2AsForCompile()
     {
-        // 60 x 2,016 = 120,960 ops per cell would pass nothing: over the contract's 100,000 for the whole network.
-        var edges = string.Join(",", from j in Enumerable.Range(1, 63) from i in Enumerable.Range(0, j) select $"[{i},{j},\"conv1x1\"]");
-        var cell = string.Join(",", Enumerable.Range(1, 30).Select(j => $"[{j - 1},{j},\"big\"]"));
-        var json = "{\"format\":\"genotype/1\",\"levels\":[{\"nodes\":64,\"motifs\":{\"big\":{\"edges\":[" + edges +
-                   "]}}},{\"nodes\":31,\"motifs\":{\"cell\":{\"edges\":[" + cell + "]}}}]}";
+        var json = HostileGenotypes.OverTheNetworkOpLimit();
         using var folder = new TempFolder();
         var path = folder.Write("big.json", json);
         var result = ProcessRunner.Cellc(["check", path], null, folder.Path);

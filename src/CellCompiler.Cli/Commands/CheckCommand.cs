@@ -196,15 +196,35 @@ public static class CheckCommand
         catch (IOException) { return false; }
     }
 
-    /// <summary>A quick streaming count for the progress display (blank lines are not candidates).</summary>
+    /// <summary>
+    /// A quick count of non-blank lines for the progress display, over bytes in blocks, so that no
+    /// line (however long) is ever held in memory.
+    /// </summary>
     private static long? CountNonBlankLines(string path)
     {
         try
         {
+            using var stream = File.OpenRead(path);
+            var buffer = new byte[1 << 16];
             long count = 0;
-            foreach (var line in File.ReadLines(path))
-                if (!string.IsNullOrWhiteSpace(line)) count++;
-            return count;
+            var lineHasText = false;
+            int read;
+            while ((read = stream.Read(buffer, 0, buffer.Length)) > 0)
+            {
+                foreach (var b in buffer.AsSpan(0, read))
+                {
+                    if (b == (byte)'\n')
+                    {
+                        if (lineHasText) count++;
+                        lineHasText = false;
+                    }
+                    else if (b is not ((byte)' ' or (byte)'\t' or (byte)'\r'))
+                    {
+                        lineHasText = true;
+                    }
+                }
+            }
+            return lineHasText ? count + 1 : count;
         }
         catch (IOException) { return null; }
     }

@@ -31,7 +31,7 @@ public static class Compiler
 
         var liveness = Liveness.Analyse(genotype);
         hash ??= GenotypeHasher.Hash(genotype, liveness);
-        var network = Lowerer.Lower(genotype, skeleton);
+        var network = Lowerer.Lower(genotype, skeleton, liveness);
         var shaped = ShapeInference.Infer(network);
         var figures = FigureCounter.Count(shaped);
         if (figures.WeightBytes >= Limits.MaxModelBytes)

@@ -9,9 +9,11 @@ namespace CellCompiler.Lowering;
 /// </summary>
 public static class Lowerer
 {
-    public static Network Lower(Genotype genotype, Skeleton skeleton)
+    public static Network Lower(Genotype genotype, Skeleton skeleton) => Lower(genotype, skeleton, Liveness.Analyse(genotype));
+
+    /// <param name="liveness">The genotype's dead-code analysis, when the caller has it already.</param>
+    public static Network Lower(Genotype genotype, Skeleton skeleton, Liveness liveness)
     {
-        var liveness = Liveness.Analyse(genotype);
         var cell = liveness.Cell(genotype);
         if (!cell.OutputIsLive)
             throw new DeadCellException(genotype.Cell.Name,
