@@ -1,19 +1,24 @@
 #!/usr/bin/env bash
 # Runs every test. Installs the outside references the tests check against when they are
-# missing: the ONNX reference checker (Debian's python3-onnx), PyTorch (python3-torch),
-# Graphviz (graphviz, parses our DOT output) and Chromium (chromium, opens the HTML report).
+# missing: the ONNX reference checker (Debian's python3-onnx), PyTorch and torchvision
+# (python3-torch, python3-torchvision), OpenCV's DNN module as a second ONNX engine
+# (python3-opencv), NetworkX's graph isomorphism (python3-networkx), Graphviz (graphviz, parses
+# our DOT output), Chromium (chromium, opens the HTML report) and Slurm with munge (slurm-wlm,
+# munge: a real scheduler runs the cluster example).
 set -euo pipefail
 cd "$(dirname "$0")/.."
 
-if ! /usr/bin/python3 -c "import onnx, torch" 2>/dev/null || ! command -v dot >/dev/null || [ ! -x /usr/bin/chromium ]; then
-  echo "Installing the test references (python3-onnx, python3-torch, graphviz, chromium)..."
+PACKAGES="python3-onnx python3-torch python3-torchvision python3-opencv python3-networkx graphviz chromium slurm-wlm munge"
+if ! /usr/bin/python3 -c "import onnx, torch, torchvision, cv2, networkx" 2>/dev/null || ! command -v dot >/dev/null \
+   || [ ! -x /usr/bin/chromium ] || ! command -v slurmctld >/dev/null || ! command -v munged >/dev/null; then
+  echo "Installing the test references ($PACKAGES)..."
   SUDO=""
   if [ "$(id -u)" -ne 0 ]; then SUDO="sudo"; fi
   $SUDO apt-get update -q
-  DEBIAN_FRONTEND=noninteractive $SUDO apt-get install -y -q python3-onnx python3-torch graphviz chromium
+  DEBIAN_FRONTEND=noninteractive $SUDO apt-get install -y -q $PACKAGES
 fi
 # A missing reference library must fail the run, never skip a check.
-/usr/bin/python3 -c "import onnx, torch; print('references: onnx', onnx.__version__, '/ torch', torch.__version__)"
+/usr/bin/python3 -c "import onnx, torch, torchvision, cv2, networkx; print('references: onnx', onnx.__version__, '/ torch', torch.__version__, '/ torchvision', torchvision.__version__, '/ opencv', cv2.__version__, '/ networkx', networkx.__version__)"
 dot -V
 /usr/bin/chromium --version
 
