@@ -1,7 +1,7 @@
 using System.CommandLine;
 using CellCompiler.Input;
 using CellCompiler.Lowering;
-using CellCompiler.Shapes;
+using CellCompiler.Graph;
 
 namespace CellCompiler.Cli;
 

@@ -1,5 +1,6 @@
 using CellCompiler.Compilation;
 using CellCompiler.Input;
+using CellCompiler.Graph;
 using CellCompiler.Lowering;
 using CellCompiler.Tests.Support;
 

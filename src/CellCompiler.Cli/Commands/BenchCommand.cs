@@ -98,7 +98,7 @@ public static class BenchCommand
             var resolved = skeleton();
             CompiledModel model;
             try { model = Compiler.Compile(genotype, resolved, options()); }
-            catch (Shapes.CompileException e) { throw new InputException(path, "", e.Message); }
+            catch (Graph.CompileException e) { throw new InputException(path, "", e.Message); }
             var motifs = genotype.Levels.Take(genotype.Levels.Count - 1).SelectMany(l => l.Motifs).Select(m => m.Name).ToHashSet(StringComparer.Ordinal);
             return (model.OnnxBytes, motifs, $"genotype {genotype.Name} on {CompileReport.DescribeSkeleton(resolved)}");
         }

@@ -38,7 +38,8 @@ public static class CompileCommand
             var resolved = skeleton.Resolve(parse);
             CompiledModel model;
             try { model = Compiler.Compile(parsed, resolved, settings.Resolve(parse)); }
-            catch (Shapes.CompileException e) { throw new InputException(genotypePath, "", e.Message); }
+            catch (Graph.CompileException e) { throw new InputException(genotypePath, "", e.Message); }
+            catch (Lowering.DeadCellException e) { throw e.In(genotypePath); }
 
             string? path = null;
             if (!parse.GetValue(noWrite))

@@ -2,6 +2,7 @@ using System.CommandLine;
 using System.Globalization;
 using CellCompiler.Input;
 using CellCompiler.Sampling;
+using CellCompiler.Vocabulary;
 
 namespace CellCompiler.Cli.Commands;
 
@@ -44,6 +45,18 @@ public static class SampleCommand
             HelpName = "W",
             DefaultValueFactory = _ => 1,
         };
+        var primitives = new Option<string?>("--primitives")
+        {
+            Description = "A JSON file of declared primitives (an object from names to {\"kind\": ..., parameters}, as a genotype's " +
+                "`primitives` field); sampled genotypes carry the declarations they use.",
+            HelpName = "FILE",
+        };
+        var ops = new Option<string?>("--ops")
+        {
+            Description = "The level-0 alphabet: built-in and declared primitive names and identity, e.g. conv1x1,wide5,identity. " +
+                "Default: identity, every built-in, every declared primitive.",
+            HelpName = "a,b,c",
+        };
         var output = new Option<string?>("--output", "-o")
         {
             Description = "Write to this file (through a temporary file and a rename) instead of stdout.",
@@ -52,9 +65,9 @@ public static class SampleCommand
 
         var command = new Command("sample",
             "Print uniformly random genotypes as JSON Lines: every pair (i, j) of every motif draws its op from its " +
-            "level's alphabet (primitives at level 0, the motifs below plus identity above), none included; none edges " +
+            "level's alphabet (--ops at level 0, by default identity and every primitive; the motifs below plus identity above), none included; none edges " +
             "are left out. Motifs are named m{level}_{index}, the cell 'cell'; ids are s{seed}-{n}. Deterministic for a seed.");
-        foreach (var option in new Option[] { levels, motifs, count, seed, noneWeight, output })
+        foreach (var option in new Option[] { levels, motifs, count, seed, noneWeight, primitives, ops, output })
             command.Options.Add(option);
 
         command.SetAction(parse =>
@@ -63,14 +76,20 @@ public static class SampleCommand
             var motifText = parse.GetValue(motifs);
             var motifCounts = motifText is null ? Enumerable.Repeat(1, nodes.Count).ToList() : ParseList(motifText, "--motifs");
             var weight = parse.GetValue(noneWeight);
-            var problem = GenotypeSampler.Check(nodes, motifCounts, weight);
+            var table = parse.GetValue(primitives) is { } primitivesPath ? PrimitiveDeclarations.ReadFile(primitivesPath) : PrimitiveTable.BuiltinsOnly;
+            var alphabet = parse.GetValue(ops) is { } opsText
+                ? opsText.Split(',').Select(op => op.Trim()).ToList()
+                : null;
+            var problem = GenotypeSampler.Check(nodes, motifCounts, weight, table, alphabet);
             if (problem is not null)
             {
                 var option = problem.Parameter switch
                 {
                     SampleParameter.Nodes => "--levels",
                     SampleParameter.Motifs => "--motifs",
-                    _ => "--none-weight",
+                    SampleParameter.Ops => "--ops",
+                    SampleParameter.NoneWeight => "--none-weight",
+                    _ => throw new InvalidOperationException($"unknown sample parameter {problem.Parameter}"),
                 };
                 throw new InputException(Origin, option, problem.Problem);
             }
@@ -78,7 +97,7 @@ public static class SampleCommand
             if (total is < 1 or > MaxCount)
                 throw new InputException(Origin, "--count", $"must be between 1 and {MaxCount:N0}, found {total}");
 
-            var sampler = new GenotypeSampler(nodes, motifCounts, weight, parse.GetValue(seed));
+            var sampler = new GenotypeSampler(nodes, motifCounts, weight, parse.GetValue(seed), table, alphabet);
             var path = parse.GetValue(output);
             if (path is null) WriteToStdout(sampler, total);
             else WriteToFile(path, sampler, total);

@@ -71,8 +71,15 @@ public static class ScaleCommand
                 throw SkeletonOptions.Bad("--batch", "scale measures latency at batch 1 only; use `cellc bench` for other batch sizes");
 
             var folder = parse.GetValue(outDir);
-            if (folder is not null && !Directory.Exists(folder))
-                throw new OutputException($"{folder}: the folder does not exist");
+            if (folder is not null)
+            {
+                if (File.Exists(folder)) throw new OutputException($"{folder}: is a file, not a folder");
+                try { Directory.CreateDirectory(folder); }
+                catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+                {
+                    throw new OutputException($"{folder}: cannot create the folder: {e.Message}");
+                }
+            }
             var written = new List<string>();
             var stem = Path.GetFileNameWithoutExtension(path);
             IReadOnlyList<ScaleRow> rows;
@@ -85,7 +92,8 @@ public static class ScaleCommand
                     written.Add(file);
                 });
             }
-            catch (Shapes.CompileException e) { throw new InputException(path, "", e.Message); }
+            catch (Graph.CompileException e) { throw new InputException(path, "", e.Message); }
+            catch (Lowering.DeadCellException e) { throw e.In(path); }
 
             if (parse.GetValue(json))
             {

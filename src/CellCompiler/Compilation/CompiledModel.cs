@@ -1,5 +1,6 @@
 using CellCompiler.Figures;
 using CellCompiler.Input;
+using CellCompiler.Graph;
 using CellCompiler.Shapes;
 
 namespace CellCompiler.Compilation;

@@ -1,4 +1,5 @@
 using CellCompiler.Figures;
+using CellCompiler.Graph;
 using CellCompiler.Hashing;
 using CellCompiler.Input;
 using CellCompiler.Lowering;
@@ -31,7 +32,7 @@ public static class Compiler
 
         var liveness = Liveness.Analyse(genotype);
         hash ??= GenotypeHasher.Hash(genotype, liveness);
-        var network = Lowerer.Lower(genotype, skeleton, liveness);
+        var network = Lowerer.Lower(genotype, skeleton, liveness, options.Opset);
         var shaped = ShapeInference.Infer(network);
         var figures = FigureCounter.Count(shaped);
         if (figures.WeightBytes >= Limits.MaxModelBytes)

@@ -1,9 +1,9 @@
-using CellCompiler.Lowering;
+using CellCompiler.Graph;
 using CellCompiler.Shapes;
 
 namespace CellCompiler.Figures;
 
-/// <summary>Counts params, buffers, MACs, peak activation memory and op counts (contract section 4).</summary>
+/// <summary>Counts params, buffers, MACs, peak activation memory and op counts (contract section 4) from each op's own figures.</summary>
 public static class FigureCounter
 {
     public static NetworkFigures Count(ShapedNetwork net)
@@ -13,36 +13,22 @@ public static class FigureCounter
         foreach (var op in net.Network.Ops)
         {
             opCounts[op.OnnxType] = opCounts.GetValueOrDefault(op.OnnxType) + 1;
-            switch (op)
+            var inputs = net.InputsOf(op);
+            var output = net[op.Output];
+            foreach (var weight in op.Weights(inputs, output))
             {
-                case ConvOp conv:
+                switch (weight.Role)
                 {
-                    var weights = ConvWeightElements(net, conv);
-                    parameters += weights;
-                    // MACs per output element equal the weights feeding it: (Cin/group) * kH * kW.
-                    var output = net[conv.Output];
-                    macs += (long)output.Height * output.Width * weights;
-                    break;
-                }
-                case BatchNormOp bn:
-                    parameters += 2L * net[bn.Output].Channels;
-                    buffers += 2L * net[bn.Output].Channels;
-                    break;
-                case GemmOp gemm:
-                {
-                    long inFeatures = net[gemm.Inputs[0]].Channels;
-                    parameters += inFeatures * gemm.OutFeatures + gemm.OutFeatures;
-                    macs += inFeatures * gemm.OutFeatures;
-                    break;
+                    case WeightRole.Param: parameters += weight.Elements; break;
+                    case WeightRole.Buffer: buffers += weight.Elements; break;
+                    case WeightRole.Constant: break;
+                    default: throw new InvalidOperationException($"unknown weight role {weight.Role}");
                 }
             }
+            macs += op.Macs(inputs, output);
         }
         return new NetworkFigures(parameters, buffers, macs, PeakActivationBytes(net), opCounts);
     }
-
-    /// <summary>Cout * (Cin / group) * kH * kW, the usual size of a conv weight (common practice).</summary>
-    public static long ConvWeightElements(ShapedNetwork net, ConvOp conv) =>
-        (long)net.ConvOutChannels(conv) * net.ConvInChannelsPerGroup(conv) * conv.Kernel * conv.Kernel;
 
     /// <summary>
     /// Largest total of float32 bytes alive at once, running ops in emitted order at N = 1. A tensor

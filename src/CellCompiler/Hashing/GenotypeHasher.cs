@@ -2,6 +2,7 @@ using System.Security.Cryptography;
 using System.Text;
 using CellCompiler.Input;
 using CellCompiler.Lowering;
+using CellCompiler.Vocabulary;
 
 namespace CellCompiler.Hashing;
 
@@ -37,7 +38,7 @@ public static class GenotypeHasher
             var forms = new Dictionary<string, string?>(StringComparer.Ordinal);
             foreach (var motif in genotype.Levels[k].Motifs)
                 if (used[k].Contains(motif.Name))
-                    forms[motif.Name] = MotifForm(liveness.Of(k, motif.Name), genotype.Levels[k].Nodes, below, budget);
+                    forms[motif.Name] = MotifForm(liveness.Of(k, motif.Name), genotype.Levels[k].Nodes, below, genotype.Primitives, budget);
             below = forms;
         }
         return below![genotype.Cell.Name] ?? Primitives.None;
@@ -59,7 +60,7 @@ public static class GenotypeHasher
     }
 
     /// <summary>null for a dead motif; otherwise the label an edge applying this motif carries.</summary>
-    private static string? MotifForm(MotifLiveness info, int nodes, Dictionary<string, string?>? below, SearchBudget budget)
+    private static string? MotifForm(MotifLiveness info, int nodes, Dictionary<string, string?>? below, PrimitiveTable table, SearchBudget budget)
     {
         if (!info.OutputIsLive) return null;
 
@@ -70,7 +71,7 @@ public static class GenotypeHasher
         for (var j = 1; j < nodes; j++)
         {
             if (!incoming.TryGetValue(j, out var inputs)) continue;
-            var labelled = inputs.Select(e => (From: alias[e.From], Label: Label(e.Op, below))).ToList();
+            var labelled = inputs.Select(e => (From: alias[e.From], Label: Label(e.Op, below, table))).ToList();
             if (labelled.Count == 1 && labelled[0].Label == Identity)
             {
                 alias[j] = labelled[0].From;
@@ -92,6 +93,12 @@ public static class GenotypeHasher
         return "motif:" + Convert.ToHexStringLower(SHA256.HashData(Encoding.UTF8.GetBytes(certificate)));
     }
 
-    private static string Label(string op, Dictionary<string, string?>? below) =>
-        below is null || Primitives.IsStructural(op) ? op : below[op]!;
+    /// <summary>A primitive is labelled by its definition (its name never matters); a built-in spelling keeps its short name.</summary>
+    private static string Label(string op, Dictionary<string, string?>? below, PrimitiveTable table)
+    {
+        if (Primitives.IsStructural(op)) return op;
+        if (below is not null) return below[op]!;
+        var definition = table.Get(op);
+        return BuiltinPrimitives.NameOf(definition) ?? definition.Key;
+    }
 }

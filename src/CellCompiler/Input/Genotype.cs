@@ -1,3 +1,5 @@
+using CellCompiler.Vocabulary;
+
 namespace CellCompiler.Input;
 
 /// <summary>One edge [from, to, op] of a motif; Index is its position in the file's edge list.</summary>
@@ -17,9 +19,16 @@ public sealed record Level(int Nodes, IReadOnlyList<Motif> Motifs)
     }
 }
 
-/// <summary>A validated hierarchical genotype (contract section 1). The last level holds only the cell.</summary>
-public sealed record Genotype(string Name, IReadOnlyList<Level> Levels, string? Id = null)
+/// <summary>
+/// A validated hierarchical genotype (contract section 1). The last level holds only the cell.
+/// <paramref name="Declarations"/> are the genotype's own primitives (contract 3.1; null: none);
+/// <paramref name="Meta"/> is the user's `meta` object as compact JSON text, carried along unread.
+/// </summary>
+public sealed record Genotype(string Name, IReadOnlyList<Level> Levels, string? Id = null, PrimitiveTable? Declarations = null, string? Meta = null)
 {
     public Motif Cell => Levels[^1].Motifs[0];
     public int TopLevel => Levels.Count - 1;
+
+    /// <summary>Every primitive level 0 may use: the built-ins and the declarations.</summary>
+    public PrimitiveTable Primitives => Declarations ?? PrimitiveTable.BuiltinsOnly;
 }

@@ -1,5 +1,6 @@
 using System.Text;
 using System.Text.Json;
+using CellCompiler.Vocabulary;
 
 namespace CellCompiler.Input;
 
@@ -22,6 +23,18 @@ public static class GenotypeJson
         if (id is not null) writer.WriteString("id", id);
         writer.WriteString("format", GenotypeReader.FormatTag);
         if (genotype.Name != id) writer.WriteString("name", genotype.Name);
+        if (genotype.Declarations is { Declared.Count: > 0 } declarations)
+        {
+            writer.WriteStartObject("primitives");
+            foreach (var (name, definition) in declarations.Declared)
+                WriteDeclaration(writer, name, definition);
+            writer.WriteEndObject();
+        }
+        if (genotype.Meta is { } meta)
+        {
+            writer.WritePropertyName("meta");
+            writer.WriteRawValue(meta, skipInputValidation: true);
+        }
         writer.WriteStartArray("levels");
         foreach (var level in genotype.Levels)
         {
@@ -47,6 +60,25 @@ public static class GenotypeJson
             writer.WriteEndObject();
         }
         writer.WriteEndArray();
+        writer.WriteEndObject();
+    }
+
+    /// <summary>One declaration with its kind and the parameters that differ from their defaults (the kernel always).</summary>
+    public static void WriteDeclaration(Utf8JsonWriter writer, string name, PrimitiveDefinition definition)
+    {
+        writer.WriteStartObject(name);
+        writer.WriteString("kind", definition.Kind.Name);
+        foreach (var (parameter, value) in definition.Values())
+        {
+            if (definition.IsDefault(parameter)) continue;
+            var field = PrimitiveDefinition.ParameterName(parameter);
+            switch (parameter)
+            {
+                case PrimitiveParameter.Act: writer.WriteString(field, value); break;
+                case PrimitiveParameter.Se: writer.WriteNumber(field, definition.Se); break;
+                default: writer.WriteNumber(field, int.Parse(value, System.Globalization.CultureInfo.InvariantCulture)); break;
+            }
+        }
         writer.WriteEndObject();
     }
 

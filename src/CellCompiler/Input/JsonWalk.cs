@@ -119,6 +119,23 @@ internal readonly struct JsonWalk(string origin, JsonElement element, string pat
         return this;
     }
 
+    /// <summary>Like <see cref="RequireObject"/>, but records every unknown field and goes on; false if this is not an object at all.</summary>
+    public bool RequireObject(ProblemList problems, params string[] allowed)
+    {
+        if (Element.ValueKind != JsonValueKind.Object)
+        {
+            problems.Add(Error($"expected an object, found {Describe(Element)}"));
+            return false;
+        }
+        var walk = this;
+        if (!problems.Try(() => walk.RequireUniqueKeys())) return false;
+        foreach (var property in Element.EnumerateObject())
+            if (Array.IndexOf(allowed, property.Name) < 0)
+                problems.Add(new InputException(Origin, Join(Path, property.Name),
+                    $"unknown field '{property.Name}' (allowed here: {string.Join(", ", allowed)})"));
+        return true;
+    }
+
     /// <summary>A repeated key would silently override the first; for a typo-proof format that is an error.</summary>
     public void RequireUniqueKeys()
     {
@@ -144,6 +161,17 @@ internal readonly struct JsonWalk(string origin, JsonElement element, string pat
         if (value < min || value > max)
             throw Error($"{value} is out of range: must be between {min} and {max}");
         return (int)value;
+    }
+
+    /// <summary>A number read exactly (JSON text to decimal), within [min, max].</summary>
+    public decimal RequireDecimal(decimal min, decimal max)
+    {
+        if (Element.ValueKind != JsonValueKind.Number || !Element.TryGetDecimal(out var value))
+            throw Error($"expected a number, found {Describe(Element)}");
+        if (value < min || value > max)
+            throw Error($"{Element.GetRawText()} is out of range: must be between {min} and {max}");
+        // Trailing zeros (0.250) carry no meaning; drop them so equal values print equally.
+        return value / 1.0000000000000000000000000000m;
     }
 
     public string RequireString()

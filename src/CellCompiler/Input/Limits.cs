@@ -19,6 +19,14 @@ public static class Limits
     public const int MaxInputChannels = 1_024;
     public const int MaxClasses = 1_000_000;
 
+    /// <summary>A byte limit for people: "1 MiB", "2 GiB", else the exact count.</summary>
+    public static string Describe(long bytes) => bytes switch
+    {
+        _ when bytes >= 1L << 30 && bytes % (1L << 30) == 0 => $"{bytes >> 30} GiB",
+        _ when bytes >= 1L << 20 && bytes % (1L << 20) == 0 => $"{bytes >> 20} MiB",
+        _ => $"{bytes:N0} bytes",
+    };
+
     /// <summary>A protobuf message cannot exceed 2 GiB, so neither can a single-file ONNX model.</summary>
     public const long MaxModelBytes = int.MaxValue;
 }

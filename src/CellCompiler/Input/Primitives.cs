@@ -1,10 +1,16 @@
+using CellCompiler.Vocabulary;
+
 namespace CellCompiler.Input;
 
-/// <summary>The primitive ops a level-0 motif may use (contract section 3).</summary>
+/// <summary>
+/// Names of the built-in primitives (contract section 3) and of the structural ops `identity` and
+/// `none`. What each built-in is lives in <see cref="BuiltinPrimitives"/>; a genotype's own
+/// declarations in its <see cref="PrimitiveTable"/>.
+/// </summary>
 public static class Primitives
 {
-    public const string None = "none";
-    public const string Identity = "identity";
+    public const string None = BuiltinPrimitives.None;
+    public const string Identity = BuiltinPrimitives.Identity;
     public const string Conv1x1 = "conv1x1";
     public const string Conv3x3 = "conv3x3";
     public const string DwConv3x3 = "dwconv3x3";
@@ -12,13 +18,12 @@ public static class Primitives
     public const string MaxPool3x3 = "maxpool3x3";
     public const string AvgPool3x3 = "avgpool3x3";
 
-    public static readonly IReadOnlyList<string> All =
-        [None, Identity, Conv1x1, Conv3x3, DwConv3x3, SepConv3x3, MaxPool3x3, AvgPool3x3];
+    /// <summary>none, identity and the built-in primitives.</summary>
+    public static IReadOnlyList<string> All { get; } = [None, Identity, .. BuiltinPrimitives.All.Select(p => p.Name)];
 
-    private static readonly HashSet<string> Names = new(All, StringComparer.Ordinal);
-
-    public static bool IsPrimitive(string op) => Names.Contains(op);
+    /// <summary>A built-in name (identity and none included); declared primitives are a genotype's own.</summary>
+    public static bool IsPrimitive(string op) => op is None or Identity || BuiltinPrimitives.Find(op) is not null;
 
     /// <summary>Ops allowed at every level, including the ones built from motifs.</summary>
-    public static bool IsStructural(string op) => op is None or Identity;
+    public static bool IsStructural(string op) => BuiltinPrimitives.IsStructural(op);
 }

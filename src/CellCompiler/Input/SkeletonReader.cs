@@ -9,18 +9,10 @@ public static class SkeletonReader
     public static Skeleton Resolve(string presetOrPath)
     {
         if (SkeletonPresets.All.TryGetValue(presetOrPath, out var preset)) return preset;
-        if (!File.Exists(presetOrPath))
+        if (!File.Exists(presetOrPath) && !Directory.Exists(presetOrPath))
             throw new InputException(presetOrPath, "",
                 $"not a preset ({string.Join(", ", SkeletonPresets.All.Keys)}) and no such file");
-        byte[] bytes;
-        try
-        {
-            if (new FileInfo(presetOrPath).Length > Limits.MaxJsonBytes)
-                throw new InputException(presetOrPath, "", "the file is larger than the 1 MiB limit");
-            bytes = File.ReadAllBytes(presetOrPath);
-        }
-        catch (IOException e) { throw new InputException(presetOrPath, "", $"cannot read the file: {e.Message}"); }
-        catch (UnauthorizedAccessException e) { throw new InputException(presetOrPath, "", $"cannot read the file: {e.Message}"); }
+        var bytes = BoundedFile.Read(presetOrPath, Limits.MaxJsonBytes, "a skeleton file");
         return Parse(bytes, presetOrPath);
     }
 

@@ -1,20 +1,13 @@
+using CellCompiler.Graph;
+
 namespace CellCompiler.Onnx;
 
-/// <summary>How an initializer's values are drawn (contract section 3, "Weights").</summary>
-internal enum Fill { HeNormal, Uniform, Zeros, Ones }
-
-/// <summary>One weight tensor to emit: its name, shape and fill rule.</summary>
-internal sealed record Initializer(string Name, long[] Dims, Fill Fill, double Scale)
+/// <summary>One weight tensor to emit: its full name and how its values are drawn.</summary>
+internal sealed record Initializer(string Name, WeightSpec Spec)
 {
-    public long Elements
-    {
-        get
-        {
-            long n = 1;
-            foreach (var d in Dims) n *= d;
-            return n;
-        }
-    }
+    public long[] Dims => Spec.Dims;
+
+    public long Elements => Spec.Elements;
 
     public long ByteLength => Elements * sizeof(float);
 
@@ -22,20 +15,19 @@ internal sealed record Initializer(string Name, long[] Dims, Fill Fill, double S
     public void WriteValues(Span<byte> destination, long seed)
     {
         var values = System.Runtime.InteropServices.MemoryMarshal.Cast<byte, float>(destination);
-        switch (Fill)
+        switch (Spec.Fill)
         {
-            case Fill.HeNormal:
-                SeededRandom.ForTensor(seed, Name).FillNormal(values, Scale);
+            case WeightFill.HeNormal:
+                SeededRandom.ForTensor(seed, Name).FillNormal(values, Spec.Value);
                 break;
-            case Fill.Uniform:
-                SeededRandom.ForTensor(seed, Name).FillUniform(values, Scale);
+            case WeightFill.Uniform:
+                SeededRandom.ForTensor(seed, Name).FillUniform(values, Spec.Value);
                 break;
-            case Fill.Ones:
-                values.Fill(1f);
+            case WeightFill.Constant:
+                values.Fill((float)Spec.Value);
                 break;
             default:
-                values.Clear();
-                break;
+                throw new InvalidOperationException($"unknown weight fill {Spec.Fill}");
         }
         if (!BitConverter.IsLittleEndian)
             System.Buffers.Binary.BinaryPrimitives.ReverseEndianness(

@@ -54,7 +54,7 @@ internal static class ModelWriter
         }
         var total = modelHead.CalculateSize() + 1 + VarintSize(graphSize) + graphSize + modelTail.CalculateSize();
         if (total > Array.MaxLength)
-            throw new Shapes.CompileException($"the model would take {total:N0} bytes; an ONNX file holds at most 2 GiB");
+            throw new Graph.CompileException($"the model would take {total:N0} bytes; an ONNX file holds at most 2 GiB");
 
         var output = GC.AllocateUninitializedArray<byte>((int)total);
         var position = 0;

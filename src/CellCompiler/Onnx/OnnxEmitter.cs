@@ -1,4 +1,4 @@
-using CellCompiler.Lowering;
+using CellCompiler.Graph;
 using CellCompiler.OnnxFormat;
 using CellCompiler.Shapes;
 using Google.Protobuf;
@@ -70,63 +70,25 @@ public static class OnnxEmitter
         var node = new NodeProto { Name = op.Name, OpType = op.OnnxType };
         node.Input.AddRange(op.Inputs);
         node.Output.Add(op.Output);
-        switch (op)
+        var inputs = net.InputsOf(op);
+        foreach (var weight in op.Weights(inputs, net[op.Output]))
         {
-            case ConvOp conv:
-            {
-                var inPerGroup = net.ConvInChannelsPerGroup(conv);
-                var fanIn = (double)inPerGroup * conv.Kernel * conv.Kernel;
-                initializers.Add(new Initializer($"{op.Name}.weight",
-                    [net.ConvOutChannels(conv), inPerGroup, conv.Kernel, conv.Kernel], Fill.HeNormal, Math.Sqrt(2.0 / fanIn)));
-                node.Input.Add($"{op.Name}.weight");
-                node.Attribute.Add(Ints("kernel_shape", conv.Kernel, conv.Kernel));
-                node.Attribute.Add(Ints("strides", conv.Stride, conv.Stride));
-                node.Attribute.Add(Ints("pads", conv.Pad, conv.Pad, conv.Pad, conv.Pad));
-                node.Attribute.Add(Int("group", net.ConvGroups(conv)));
-                break;
-            }
-            case BatchNormOp:
-            {
-                long channels = net[op.Output].Channels;
-                foreach (var (suffix, fill) in new[] { ("scale", Fill.Ones), ("bias", Fill.Zeros), ("mean", Fill.Zeros), ("var", Fill.Ones) })
-                {
-                    initializers.Add(new Initializer($"{op.Name}.{suffix}", [channels], fill, 0));
-                    node.Input.Add($"{op.Name}.{suffix}");
-                }
-                node.Attribute.Add(new AttributeProto { Name = "epsilon", Type = AttributeProto.Types.AttributeType.Float, F = BatchNormOp.Epsilon });
-                node.Attribute.Add(new AttributeProto { Name = "momentum", Type = AttributeProto.Types.AttributeType.Float, F = BatchNormOp.Momentum });
-                break;
-            }
-            case MaxPoolOp pool:
-                AddPoolAttributes(node, pool.Kernel, pool.Stride, pool.Pad);
-                break;
-            case AveragePoolOp pool:
-                AddPoolAttributes(node, pool.Kernel, pool.Stride, pool.Pad);
-                node.Attribute.Add(Int("count_include_pad", 0));
-                break;
-            case ConcatOp or FlattenOp:
-                node.Attribute.Add(Int("axis", 1));
-                break;
-            case GemmOp gemm:
-            {
-                long inFeatures = net[gemm.Inputs[0]].Channels;
-                initializers.Add(new Initializer($"{op.Name}.weight", [gemm.OutFeatures, inFeatures], Fill.Uniform, 1.0 / Math.Sqrt(inFeatures)));
-                initializers.Add(new Initializer($"{op.Name}.bias", [gemm.OutFeatures], Fill.Zeros, 0));
-                node.Input.Add($"{op.Name}.weight");
-                node.Input.Add($"{op.Name}.bias");
-                node.Attribute.Add(Int("transB", 1));
-                break;
-            }
+            var name = $"{op.Name}.{weight.Suffix}";
+            initializers.Add(new Initializer(name, weight));
+            node.Input.Add(name);
         }
+        foreach (var attribute in op.Attributes(inputs))
+            node.Attribute.Add(Attribute(attribute));
         return node;
     }
 
-    private static void AddPoolAttributes(NodeProto node, int kernel, int stride, int pad)
+    private static AttributeProto Attribute(NodeAttribute attribute) => attribute switch
     {
-        node.Attribute.Add(Ints("kernel_shape", kernel, kernel));
-        node.Attribute.Add(Ints("strides", stride, stride));
-        node.Attribute.Add(Ints("pads", pad, pad, pad, pad));
-    }
+        IntAttribute a => Int(a.Name, a.Value),
+        IntsAttribute a => Ints(a.Name, a.Values),
+        FloatAttribute a => new AttributeProto { Name = a.Name, Type = AttributeProto.Types.AttributeType.Float, F = a.Value },
+        _ => throw new InvalidOperationException($"no ONNX form for attribute {attribute.GetType().Name}"),
+    };
 
     private static AttributeProto Int(string name, long value) =>
         new() { Name = name, Type = AttributeProto.Types.AttributeType.Int, I = value };

@@ -1,5 +1,6 @@
 using CellCompiler.Input;
 using CellCompiler.Lowering;
+using CellCompiler.Vocabulary;
 
 namespace CellCompiler.Rendering;
 
@@ -49,7 +50,7 @@ public sealed record RenderModel(string GenotypeName, int LevelCount, bool CellI
             {
                 var info = liveness.Of(k, motif.Name);
                 if (used[k].TryGetValue(motif.Name, out var users))
-                    panels.Add(Panel(motif, k, k == genotype.TopLevel, level.Nodes, info, liveness, users));
+                    panels.Add(Panel(motif, k, k == genotype.TopLevel, level.Nodes, info, liveness, users, genotype.Primitives));
                 else
                     omitted.Add(new OmittedMotif(motif.Name, k, !info.OutputIsLive));
             }
@@ -86,7 +87,7 @@ public sealed record RenderModel(string GenotypeName, int LevelCount, bool CellI
     }
 
     private static RenderPanel Panel(Motif motif, int level, bool isCell, int nodeCount, MotifLiveness info,
-        Liveness liveness, List<(string, int)> users)
+        Liveness liveness, List<(string, int)> users, PrimitiveTable primitives)
     {
         var live = new HashSet<int>(info.LiveEdges.Select(e => e.Index));
         var deadNodes = new HashSet<int>(info.DeadNodes);
@@ -102,16 +103,15 @@ public sealed record RenderModel(string GenotypeName, int LevelCount, bool CellI
         var edges = motif.Edges
             .Where(e => e.Op != Primitives.None)
             .OrderBy(e => e.From).ThenBy(e => e.To)
-            .Select(e => new RenderEdge(e, !live.Contains(e.Index), Kind(e.Op, level)))
+            .Select(e => new RenderEdge(e, !live.Contains(e.Index), Kind(e.Op, level, primitives)))
             .ToList();
         return new RenderPanel(motif, level, isCell, info.OutputIsLive, nodes, edges, users);
     }
 
-    private static EdgeKind Kind(string op, int level) => op switch
+    private static EdgeKind Kind(string op, int level, PrimitiveTable primitives) => op switch
     {
         Primitives.Identity => EdgeKind.Identity,
-        Primitives.MaxPool3x3 or Primitives.AvgPool3x3 => EdgeKind.Pooling,
         _ when level > 0 => EdgeKind.Motif,
-        _ => EdgeKind.Convolution,
+        _ => primitives.Get(op).Kind.Family == KindFamily.Pooling ? EdgeKind.Pooling : EdgeKind.Convolution,
     };
 }

@@ -1,11 +1,12 @@
 using CellCompiler.Onnx;
 using System.Globalization;
 using CellCompiler.Input;
+using CellCompiler.Vocabulary;
 
 namespace CellCompiler.Sampling;
 
 /// <summary>Which input of a sample specification is wrong.</summary>
-public enum SampleParameter { Nodes, Motifs, NoneWeight }
+public enum SampleParameter { Nodes, Motifs, NoneWeight, Ops }
 
 /// <summary>Why a sample specification cannot be sampled.</summary>
 public sealed record SampleProblem(SampleParameter Parameter, string Problem);
@@ -34,16 +35,24 @@ public sealed class GenotypeSampler
     private readonly string[][] _ops;
     // Integer weights (the default 1 and 0 among them) are drawn exactly; other weights through a double.
     private readonly long _integerNoneWeight;
+    private readonly PrimitiveTable _primitives;
+    private readonly string[] _levelZero;
     private readonly bool _integerWeight;
 
-    public GenotypeSampler(IReadOnlyList<int> nodes, IReadOnlyList<int> motifs, double noneWeight = 1, long seed = 0)
+    /// <param name="primitives">The vocabulary: built-ins and declared primitives (default: the built-ins).</param>
+    /// <param name="ops">The level-0 alphabet (default: <see cref="DefaultOps"/>); `identity` may be among them.</param>
+    public GenotypeSampler(IReadOnlyList<int> nodes, IReadOnlyList<int> motifs, double noneWeight = 1, long seed = 0,
+        PrimitiveTable? primitives = null, IReadOnlyList<string>? ops = null)
     {
-        var problem = Check(nodes, motifs, noneWeight);
+        _primitives = primitives ?? PrimitiveTable.BuiltinsOnly;
+        _levelZero = ops?.ToArray() ?? DefaultOps(_primitives).ToArray();
+        var problem = Check(nodes, motifs, noneWeight, _primitives, _levelZero);
         if (problem is not null)
             throw new ArgumentException(problem.Problem, problem.Parameter switch
             {
                 SampleParameter.Nodes => nameof(nodes),
                 SampleParameter.Motifs => nameof(motifs),
+                SampleParameter.Ops => nameof(ops),
                 _ => nameof(noneWeight),
             });
         _nodes = [.. nodes];
@@ -57,11 +66,12 @@ public sealed class GenotypeSampler
         for (var k = 0; k < nodes.Count; k++)
         {
             _names[k] = Enumerable.Range(0, motifs[k]).Select(i => MotifName(k, i, nodes.Count)).ToArray();
-            _ops[k] = k == 0
-                ? Primitives.All.Where(op => op != Primitives.None).ToArray()
-                : [.. _names[k - 1], Primitives.Identity];
+            _ops[k] = k == 0 ? _levelZero : [.. _names[k - 1], Primitives.Identity];
         }
     }
+
+    /// <summary>The default level-0 alphabet: identity, the built-ins, then the declared primitives.</summary>
+    public static IReadOnlyList<string> DefaultOps(PrimitiveTable primitives) => [Primitives.Identity, .. primitives.Names];
 
     public IReadOnlyList<int> Nodes => _nodes;
     public IReadOnlyList<int> Motifs => _names.Select(n => n.Length).ToArray();
@@ -114,7 +124,10 @@ public sealed class GenotypeSampler
             }
             levels[k] = new Level(nodes, motifs);
         }
-        return new Genotype(id, levels, id);
+        // A sampled genotype carries the declarations it uses, and only those.
+        var declared = _primitives.Declared.Count == 0 ? null
+            : _primitives.Restrict(levels[0].Motifs.SelectMany(m => m.Edges).Select(e => e.Op));
+        return new Genotype(id, levels, id, declared is { Declared.Count: > 0 } ? declared : null);
     }
 
     /// <summary>One op of the alphabet, or null for `none`.</summary>
@@ -137,8 +150,11 @@ public sealed class GenotypeSampler
     /// largest possible expanded cell and the longest possible line (with an id of up to
     /// <see cref="MaxIdLength"/> characters) are bounded up front, so no sampled line is ever invalid.
     /// </summary>
-    public static SampleProblem? Check(IReadOnlyList<int> nodes, IReadOnlyList<int> motifs, double noneWeight)
+    public static SampleProblem? Check(IReadOnlyList<int> nodes, IReadOnlyList<int> motifs, double noneWeight,
+        PrimitiveTable? primitives = null, IReadOnlyList<string>? ops = null)
     {
+        primitives ??= PrimitiveTable.BuiltinsOnly;
+        var alphabet = ops ?? DefaultOps(primitives);
         if (nodes.Count == 0)
             return new(SampleParameter.Nodes, "give at least one level");
         if (nodes.Count > Limits.MaxLevels)
@@ -157,12 +173,26 @@ public sealed class GenotypeSampler
         if (!double.IsFinite(noneWeight) || noneWeight < 0)
             return new(SampleParameter.NoneWeight, $"must be a finite number >= 0, found {noneWeight.ToString(CultureInfo.InvariantCulture)}");
 
-        var ops = WorstCaseExpandedOps(nodes);
-        if (ops > (UInt128)Limits.MaxExpandedPrimitiveOps)
+        if (alphabet.Count == 0)
+            return new(SampleParameter.Ops, "the level-0 alphabet is empty; give at least one op");
+        foreach (var op in alphabet)
+        {
+            if (op == Primitives.None)
+                return new(SampleParameter.Ops, "none is not listed among the ops: --none-weight sets how often a pair is left out");
+            if (op != Primitives.Identity && !primitives.IsPrimitive(op))
+                return new(SampleParameter.Ops,
+                    $"unknown op '{op}'; available: {string.Join(", ", [Primitives.Identity, .. primitives.Names])}");
+        }
+        var duplicated = alphabet.GroupBy(op => op, StringComparer.Ordinal).FirstOrDefault(g => g.Count() > 1);
+        if (duplicated is not null)
+            return new(SampleParameter.Ops, $"'{duplicated.Key}' is listed twice; every op is drawn with the same weight once");
+
+        var expanded = WorstCaseExpandedOps(nodes);
+        if (expanded > (UInt128)Limits.MaxExpandedPrimitiveOps)
             return new(SampleParameter.Nodes,
-                $"a sampled cell could expand to {ops:N0} primitive ops (every pair of every level an op); " +
+                $"a sampled cell could expand to {expanded:N0} primitive ops (every pair of every level an op); " +
                 $"the limit is {Limits.MaxExpandedPrimitiveOps:N0}: use fewer nodes or levels");
-        var bytes = WorstCaseJsonBytes(nodes, motifs, MaxIdLength);
+        var bytes = WorstCaseJsonBytes(nodes, motifs, MaxIdLength, alphabet, primitives);
         if (bytes > Limits.MaxJsonBytes)
             return new(SampleParameter.Motifs,
                 $"a sampled genotype could take {bytes:N0} bytes of JSON; the limit is {Limits.MaxJsonBytes:N0} bytes (1 MiB): " +
@@ -188,17 +218,23 @@ public sealed class GenotypeSampler
     /// <paramref name="idLength"/> ASCII characters: every pair listed with the longest op name of
     /// its level. Counted from the compact format, without building anything.
     /// </summary>
-    public static long WorstCaseJsonBytes(IReadOnlyList<int> nodes, IReadOnlyList<int> motifs, int idLength)
+    public static long WorstCaseJsonBytes(IReadOnlyList<int> nodes, IReadOnlyList<int> motifs, int idLength,
+        IReadOnlyList<string>? ops = null, PrimitiveTable? primitives = null)
     {
+        primitives ??= PrimitiveTable.BuiltinsOnly;
+        var levelZero = ops ?? DefaultOps(primitives);
         // {"id":"<id>","format":"genotype/1","levels":[ ... ]}
         long total = "{\"id\":\"".Length + idLength + "\",".Length + "\"format\":\"genotype/1\",".Length
             + "\"levels\":[".Length + "]}".Length + (nodes.Count - 1);
+        // Every declaration, as the writer spells it: a sample carries at most these.
+        if (primitives.Declared.Count > 0)
+            total += ",\"primitives\":".Length + DeclarationsBytes(primitives);
         var levelCount = nodes.Count;
         for (var k = 0; k < levelCount; k++)
         {
             var n = nodes[k];
             var longestOp = k == 0
-                ? Primitives.All.Where(op => op != Primitives.None).Max(op => op.Length)
+                ? levelZero.Max(op => op.Length)
                 : Math.Max(Primitives.Identity.Length, MotifName(k - 1, motifs[k - 1] - 1, levelCount).Length);
             // Each edge: [i,j,"op"]
             long edges = 0;
@@ -213,6 +249,19 @@ public sealed class GenotypeSampler
                 total += 1 + MotifName(k, m, levelCount).Length + "\":{\"edges\":[".Length + edges + "]}".Length;
         }
         return total;
+    }
+
+    private static long DeclarationsBytes(PrimitiveTable primitives)
+    {
+        using var stream = new MemoryStream();
+        using (var writer = JsonOutput.Writer(stream))
+        {
+            writer.WriteStartObject();
+            foreach (var (name, definition) in primitives.Declared)
+                GenotypeJson.WriteDeclaration(writer, name, definition);
+            writer.WriteEndObject();
+        }
+        return stream.Length;
     }
 
     private static long Pairs(int n) => (long)n * (n - 1) / 2;

@@ -2,6 +2,7 @@ using System.Diagnostics;
 using System.Globalization;
 using CellCompiler.Compilation;
 using CellCompiler.Figures;
+using CellCompiler.Graph;
 using CellCompiler.Hashing;
 using CellCompiler.Lowering;
 using CellCompiler.Runtime;

@@ -1,4 +1,4 @@
-using CellCompiler.Lowering;
+using CellCompiler.Graph;
 
 namespace CellCompiler.Shapes;
 
@@ -11,10 +11,6 @@ public sealed record ShapedNetwork(Network Network, IReadOnlyDictionary<string, 
 
     public TensorShape OutputShape => Shapes[Network.OutputName];
 
-    /// <summary>Channels of a conv's input per group, the second dimension of its weight.</summary>
-    public int ConvInChannelsPerGroup(ConvOp conv) => conv.Depthwise ? 1 : Shapes[conv.Inputs[0]].Channels;
-
-    public int ConvOutChannels(ConvOp conv) => conv.OutChannels ?? Shapes[conv.Inputs[0]].Channels;
-
-    public int ConvGroups(ConvOp conv) => conv.Depthwise ? Shapes[conv.Inputs[0]].Channels : 1;
+    /// <summary>The shapes of an op's inputs, as its rules take them.</summary>
+    public InputShapes InputsOf(NetOp op) => new(op.Inputs, Shapes);
 }

@@ -1,6 +1,6 @@
 using CellCompiler.Input;
 
-namespace CellCompiler.Lowering;
+namespace CellCompiler.Graph;
 
 /// <summary>
 /// The lowered network: ops in execution order over named tensors. Tensor shapes are not known

@@ -1,4 +1,4 @@
-namespace CellCompiler.Shapes;
+namespace CellCompiler.Graph;
 
 /// <summary>A tensor's shape for one sample (the batch dimension N is left out).</summary>
 public readonly record struct TensorShape(int Channels, int Height, int Width, bool IsFlat = false)
@@ -13,4 +13,11 @@ public readonly record struct TensorShape(int Channels, int Height, int Width, b
     public int[] Dims => IsFlat ? [Channels] : [Channels, Height, Width];
 
     public override string ToString() => IsFlat ? $"[N, {Channels}]" : $"[N, {Channels}, {Height}, {Width}]";
+
+    /// <summary>
+    /// Output side of a convolution or pooling window, from the ONNX Conv specification:
+    /// floor((in + 2 * pad - dilation * (kernel - 1) - 1) / stride) + 1.
+    /// </summary>
+    public static int WindowOutput(int size, int kernel, int stride, int pad, int dilation = 1) =>
+        (size + 2 * pad - dilation * (kernel - 1) - 1) / stride + 1;
 }
