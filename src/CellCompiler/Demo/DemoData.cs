@@ -1,3 +1,6 @@
+using CellCompiler.Input;
+using CellCompiler.Vocabulary;
+
 namespace CellCompiler.Demo;
 
 /// <summary>
@@ -6,12 +9,30 @@ namespace CellCompiler.Demo;
 /// </summary>
 public static class DemoData
 {
+    /// <summary>
+    /// The team's own primitives (contract 3.1), declared by the cells and offered to the sampler:
+    /// a wide separable convolution, an inverted bottleneck with squeeze-excitation, a factorized strip.
+    /// </summary>
+    public const string PrimitivesJson = """
+        {"wide5":{"kind":"sepconv","kernel":5},
+         "bneck3":{"kind":"mbconv","kernel":3,"expand":4,"se":0.25,"act":"silu"},
+         "strip5":{"kind":"factorized","kernel":5}}
+        """;
+
+    public static PrimitiveTable Primitives { get; } =
+        PrimitiveDeclarations.Parse(System.Text.Encoding.UTF8.GetBytes(PrimitivesJson), "the demo's primitives");
+
+    /// <summary>The level-0 alphabet the population is drawn from: identity, the built-ins and the team's primitives.</summary>
+    public static IReadOnlyList<string> PopulationOps { get; } = Sampling.GenotypeSampler.DefaultOps(Primitives);
+
     /// <summary>A 3-level cell: three level-0 motifs composed into two level-1 motifs, composed into the cell.</summary>
     public const string ReefCell = """
-        {"format":"genotype/1","name":"tidepool-reef","levels":[
+        {"format":"genotype/1","name":"tidepool-reef",
+         "primitives":{"wide5":{"kind":"sepconv","kernel":5},"bneck3":{"kind":"mbconv","kernel":3,"expand":4,"se":0.25,"act":"silu"}},
+         "levels":[
           {"nodes":4,"motifs":{
-            "anemone":{"edges":[[0,1,"conv1x1"],[0,2,"dwconv3x3"],[1,3,"identity"],[2,3,"maxpool3x3"]]},
-            "barnacle":{"edges":[[0,1,"sepconv3x3"],[1,2,"avgpool3x3"],[0,3,"conv1x1"],[2,3,"identity"]]},
+            "anemone":{"edges":[[0,1,"conv1x1"],[0,2,"bneck3"],[1,3,"identity"],[2,3,"maxpool3x3"]]},
+            "barnacle":{"edges":[[0,1,"wide5"],[1,2,"avgpool3x3"],[0,3,"conv1x1"],[2,3,"identity"]]},
             "chiton":{"edges":[[0,1,"conv3x3"],[1,3,"identity"],[0,2,"avgpool3x3"],[2,3,"conv1x1"]]}}},
           {"nodes":4,"motifs":{
             "reef":{"edges":[[0,1,"anemone"],[1,2,"barnacle"],[0,2,"identity"],[2,3,"chiton"]]},
@@ -29,7 +50,10 @@ public static class DemoData
             [2,7,"maxpool3x3"],[7,8,"dwconv3x3"],[8,9,"identity"],[6,9,"avgpool3x3"],[9,10,"conv1x1"],[4,10,"identity"]]}}}]}
         """;
 
-    /// <summary>The generated population: 200 two-level genotypes (as `cellc sample --levels 4,5 --motifs 6,1 --seed 2026`).</summary>
+    /// <summary>
+    /// The generated population: 200 two-level genotypes, as
+    /// `cellc sample --levels 4,5 --motifs 6,1 --seed 2026 --primitives primitives.json` with the primitives above.
+    /// </summary>
     public const int PopulationSize = 200;
     public const long PopulationSeed = 2026;
     public static readonly int[] PopulationNodes = [4, 5];

@@ -17,12 +17,14 @@ public static partial class PrimitiveDeclarations
     private static partial Regex NamePattern();
 
     /// <summary>A file holding one JSON object of declarations (e.g. for `cellc sample --primitives`).</summary>
-    public static PrimitiveTable ReadFile(string path)
+    public static PrimitiveTable ReadFile(string path) => Parse(BoundedFile.Read(path, Limits.MaxJsonBytes, "a primitives file"), path);
+
+    /// <summary>One JSON object of declarations; <paramref name="origin"/> names it in errors.</summary>
+    public static PrimitiveTable Parse(ReadOnlyMemory<byte> utf8, string origin)
     {
-        var bytes = BoundedFile.Read(path, Limits.MaxJsonBytes, "a primitives file");
-        using var document = JsonWalk.ParseDocument(path, bytes);
-        var problems = new ProblemList(path);
-        var declarations = Read(new JsonWalk(path, document.RootElement, ""), problems);
+        using var document = JsonWalk.ParseDocument(origin, utf8);
+        var problems = new ProblemList(origin);
+        var declarations = Read(new JsonWalk(origin, document.RootElement, ""), problems);
         problems.ThrowIfAny();
         return new PrimitiveTable(declarations);
     }
