@@ -17,12 +17,34 @@ public static class StandardStreams
     /// <summary>Standard input; refused when it is closed (a process started with its standard input shut).</summary>
     public static Stream Input()
     {
-        if (OperatingSystem.IsLinux() && !File.Exists("/proc/self/fd/0"))
+        if (StandardInputIsClosed())
             throw new Input.InputException("<stdin>", "", "standard input is closed; give a file, or pipe the population into cellc");
         var stream = Console.OpenStandardInput();
         return stream == Stream.Null
             ? throw new Input.InputException("<stdin>", "", "standard input is closed; give a file, or pipe the population into cellc")
             : stream;
+    }
+
+    /// <summary>
+    /// On Linux: descriptor 0 is missing, or was opened by this process itself after start (it carries
+    /// close-on-exec, which an inherited standard input never does): the runtime reuses the number of a
+    /// closed standard input for its own pipes, and reading that would wait forever.
+    /// </summary>
+    private static bool StandardInputIsClosed()
+    {
+        if (!OperatingSystem.IsLinux()) return false;
+        try
+        {
+            if (!File.Exists("/proc/self/fd/0")) return true;
+            foreach (var line in File.ReadLines("/proc/self/fdinfo/0"))
+            {
+                if (!line.StartsWith("flags:", StringComparison.Ordinal)) continue;
+                const int closeOnExec = 0x80000; // O_CLOEXEC, 02000000 octal
+                return (Convert.ToInt32(line["flags:".Length..].Trim(), 8) & closeOnExec) != 0;
+            }
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException or FormatException) { }
+        return false;
     }
 
     private sealed class GuardedStream(Stream inner) : Stream

@@ -83,6 +83,12 @@ public sealed class CandidateSource
             var genotype = GenotypeReader.Parse(heads[only.Path], only.Path, System.IO.Path.GetFileNameWithoutExtension(only.Path));
             single = Candidate.Valid(genotype.Id ?? genotype.Name, genotype, new LinePlace(only.Path, 1));
         }
+        // Standard input is opened now, so that a closed one is refused before anything is written.
+        if (inputs.Contains("-"))
+        {
+            var opened = stdin();
+            stdin = () => opened;
+        }
         var source = new CandidateSource(parts, stdin, single);
         foreach (var (path, head) in heads) source._heads[path] = head;
         foreach (var (path, pipe) in pipes) source._pipes[path] = pipe;

@@ -22,7 +22,7 @@ public sealed record CheckOptions(
     public const int DefaultTrainBatch = 64;
 
     /// <summary>Default bound on ONNX nodes run per candidate (see the README's reliability section for the measurement).</summary>
-    public const int DefaultMaxRunNodes = 20_000;
+    public const int DefaultMaxRunNodes = 10_000;
 
     /// <summary>Latency is measured when asked for, or when a latency budget needs it.</summary>
     public LatencySettings? EffectiveLatency => Latency ?? (Budgets.NeedsLatency ? LatencySettings.Default : null);

@@ -61,6 +61,26 @@ public static class CheckRecordJson
         return record;
     }
 
+    /// <summary>What a field of a record holds, from the record's own type (so that a new field needs no entry here).</summary>
+    private static string Expected(string field)
+    {
+        var top = field.Split('.', '[')[0];
+        var type = ScreeningJson.Readable.CheckRecord.Properties.FirstOrDefault(p => p.Name == top)?.PropertyType;
+        type = type is null ? null : Nullable.GetUnderlyingType(type) ?? type;
+        if (top != field) return "of the expected type";
+        return type switch
+        {
+            null => "of the expected type",
+            _ when type == typeof(string) => "a string",
+            _ when type == typeof(long) || type == typeof(int) => "a whole number",
+            _ when type == typeof(double) => "a number",
+            _ when type == typeof(bool) => "true or false",
+            _ when typeof(System.Collections.IDictionary).IsAssignableFrom(type) || type.Name.Contains("Dictionary", StringComparison.Ordinal) => "an object",
+            _ when typeof(System.Collections.IEnumerable).IsAssignableFrom(type) => "a list",
+            _ => "an object",
+        };
+    }
+
     /// <summary>A parser message in our words, without .NET type names or positions.</summary>
     private static string Describe(JsonException e)
     {
@@ -78,14 +98,7 @@ public static class CheckRecordJson
         if (field is not null && message.Contains("null", StringComparison.OrdinalIgnoreCase) && message.Contains("allow", StringComparison.Ordinal))
             return $"'{field}' is null";
         if (field is not null && message.Contains("could not be converted to", StringComparison.Ordinal))
-        {
-            var type = message.Contains("System.String", StringComparison.Ordinal) ? "a string"
-                : message.Contains("System.Int", StringComparison.Ordinal) ? "a whole number"
-                : message.Contains("System.Double", StringComparison.Ordinal) ? "a number"
-                : message.Contains("System.Boolean", StringComparison.Ordinal) ? "true or false"
-                : "of the expected type";
-            return $"'{field}' is not {type}";
-        }
+            return $"'{field}' is not {Expected(field)}";
         return $"not valid JSON (at character {(e.BytePositionInLine ?? 0) + 1})";
     }
 }
@@ -137,8 +150,11 @@ public sealed class OutputShapeJsonConverter : JsonConverter<int[]>
 public sealed partial class ScreeningJson : JsonSerializerContext
 {
     /// <summary>The context to use: as <see cref="JsonSerializerContext"/> Default, with non-ASCII text written as it is (no \u escapes).</summary>
-    public static ScreeningJson Readable { get; } = new(new JsonSerializerOptions(Default!.Options)
+    public static ScreeningJson Readable => s_readable ??= new(new JsonSerializerOptions(Default.Options)
     {
         Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping,
     });
+
+    // Made on first use: a static initializer here would run before the generated Default exists.
+    private static ScreeningJson? s_readable;
 }
