@@ -83,9 +83,13 @@ public static class HumanNumber
     public static Func<ArgumentResult, int> WholeNumber(int min, int max) => result =>
     {
         var token = Token(result);
-        if (int.TryParse(token.Trim(), NumberStyles.AllowLeadingSign, Invariant, out var value) && value >= min && value <= max)
-            return value;
-        result.AddError($"{OptionName(result)}: '{token}' is not a whole number from {min.ToString("N0", Invariant)} to {max.ToString("N0", Invariant)}");
+        if (long.TryParse(token.Trim(), NumberStyles.AllowLeadingSign, Invariant, out var value))
+        {
+            if (value >= min && value <= max) return (int)value;
+            result.AddError($"{OptionName(result)} must be between {min} and {max}, found {value}");
+            return min;
+        }
+        result.AddError($"{OptionName(result)}: '{token}' is not a whole number (between {min} and {max})");
         return min;
     };
 
