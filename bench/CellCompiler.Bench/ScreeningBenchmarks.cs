@@ -37,7 +37,7 @@ public class ScreeningBenchmarks
         var cachedSampler = new GenotypeSampler([4, 5], [6, 1], seed: 12);
         _cachedPopulation = cachedSampler.Sample(CachedCandidates).Select(g => Candidate.Valid(g.Id ?? g.Name, g)).ToList();
         _cacheFile = Path.Combine(Path.GetTempPath(), $"cellc-bench-{Environment.ProcessId}.db");
-        _cache = new SqliteResultCache(_cacheFile);
+        _cache = SqliteResultCache.Open(_cacheFile, warning => throw new InvalidOperationException(warning));
         Screen(_cachedPopulation, new CandidateChecker(_options, _cache));
     }
 

@@ -305,7 +305,7 @@ public sealed class CheckCommandTests
             Assert.Single(rows);
             Assert.Contains($" {status} ", rows[0]);
         }
-        Assert.Contains("6 candidate(s): ok 4, over_budget 0, broken 1, invalid 1", lines);
+        Assert.Contains("6 candidates: ok 4, over_budget 0, broken 1, invalid 1", lines);
         Assert.DoesNotContain("does not transfer", result.Stdout);
     }
 
@@ -316,7 +316,7 @@ public sealed class CheckCommandTests
         Assert.Equal(0, result.ExitCode);
         // Issue 3: CPU latency measured here does not transfer to other hardware.
         Assert.Contains("does not transfer to other hardware", result.Stdout);
-        Assert.Contains("1 candidate(s): ok 1, over_budget 0, broken 0, invalid 0", result.Stdout);
+        Assert.Contains("1 candidate: ok 1, over_budget 0, broken 0, invalid 0", result.Stdout);
     }
 
     [Fact]

@@ -33,7 +33,7 @@ public sealed class DemoTests
         Assert.Equal(200, records.Count);
         Assert.Equal(200, records.Select(r => r.GetProperty("id").GetString()).Distinct().Count());
         var ok = records.Count(r => r.GetProperty("status").GetString() == "ok");
-        Assert.Contains($"200 candidate(s): ok {ok},", first.Stdout);
+        Assert.Contains($"200 candidates: ok {ok},", first.Stdout);
         // Latency is measured for the survivors only.
         Assert.All(records.Where(r => r.GetProperty("status").GetString() == "ok"), r => Assert.True(r.GetProperty("latency_ms").GetDouble() > 0));
         Assert.All(records.Where(r => r.GetProperty("status").GetString() == "over_budget"), r => Assert.False(r.TryGetProperty("latency_ms", out _)));

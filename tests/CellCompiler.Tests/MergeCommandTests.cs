@@ -1,5 +1,6 @@
 using System.Text.Json;
 using CellCompiler.Screening;
+using CellCompiler.Screening.Merging;
 using CellCompiler.Tests.Support;
 
 namespace CellCompiler.Tests;
@@ -276,12 +277,13 @@ public sealed class MergeCommandTests
         };
         var path = folder.Write("population.jsonl", string.Join("\n", lines));
 
-        using var reader = new StreamReader(path);
-        var fromCheck = PopulationReader.Read(reader, path).Select(c => c.Id).ToList();
-        var fromMerge = ShardMerger.ReadPopulationIds(path).ToList();
+        var fromCheck = PopulationReader.ReadFile(path).Select(c => c.Id).ToList();
+        var fromMerge = PopulationIds.ReadFile(path).ToList();
 
         Assert.Equal(fromCheck, fromMerge);
         Assert.Contains("v\uD83D\uDE00", fromMerge);
-        Assert.Contains("line-9", fromMerge);
+        // An invalid line keeps a usable id (here a whole surrogate pair); a lone surrogate is not usable.
+        Assert.Contains("w\uD83D\uDE00", fromMerge);
+        Assert.Contains("line-10", fromMerge);
     }
 }

@@ -152,8 +152,8 @@ public sealed class ScreeningTests
         var again = ProcessRunner.Cellc(["check", population, "--out", output, "--resume", "--no-cache"], null, folder.Path);
         Assert.Equal(before, File.ReadAllText(output));
         // Nothing was checked again, and the summary still covers the 5 records already there.
-        Assert.Contains("Resumed: 5 record(s)", again.Stdout);
-        Assert.Contains("5 candidate(s):", again.Stdout);
+        Assert.Contains("Resumed: 5 records were", again.Stdout);
+        Assert.Contains("5 candidates:", again.Stdout);
     }
 
     [Fact]
@@ -172,7 +172,7 @@ public sealed class ScreeningTests
 
         var overInput = ProcessRunner.Cellc(["check", population, "--out", population, "--no-cache"], null, folder.Path);
         Assert.Equal(2, overInput.ExitCode);
-        Assert.Contains("is the input file", overInput.Stderr);
+        Assert.Contains("is an input file", overInput.Stderr);
         Assert.Equal(3, File.ReadAllLines(population).Length);
     }
 

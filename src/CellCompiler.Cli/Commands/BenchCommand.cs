@@ -38,7 +38,7 @@ public static class BenchCommand
         {
             var path = parse.GetValue(target)!;
             var latency = latencyOptions.Resolve(parse);
-            var (bytes, motifs, description) = Load(path, () => skeleton.Resolve(parse), () => settings.Resolve(parse));
+            var (bytes, ours, description) = Load(path, () => skeleton.Resolve(parse), () => settings.Resolve(parse), latency.BatchSizes);
             BenchResult result;
             try
             {
@@ -49,7 +49,7 @@ public static class BenchCommand
                     // The trace grows with every profiled run: a bounded number is plenty for shares.
                     var profile = KernelProfile.Collect(bytes, latency.BatchSizes[0], latency.Threads,
                         Math.Min(latency.Warmup, 10), Math.Min(latency.Runs, 200));
-                    parts = LatencyBreakdown.FromProfile(profile, motifs);
+                    parts = LatencyBreakdown.FromProfile(profile, ours);
                 }
                 result = new BenchResult(path, description, report, parts);
             }
@@ -59,7 +59,7 @@ public static class BenchCommand
             }
             if (parse.GetValue(json))
             {
-                using var stdout = Console.OpenStandardOutput();
+                using var stdout = StandardStreams.Output();
                 BenchReport.WriteJson(stdout, result);
             }
             else
@@ -71,46 +71,49 @@ public static class BenchCommand
         return command;
     }
 
-    /// <summary>
-    /// A model this tool made (it carries a genotype_hash) is broken down by part too: its motif
-    /// names are read back from the hierarchical node names ("eN:motif" segments that are not primitives).
-    /// </summary>
-    private static IReadOnlySet<string>? OwnMotifs(byte[] bytes)
+    /// <summary>A model this tool made carries its genotype's hash: its node names are then hierarchical paths.</summary>
+    private static bool MadeByUs(byte[] bytes)
     {
-        try
-        {
-            var model = OnnxFormat.ModelProto.Parser.ParseFrom(bytes);
-            if (!model.MetadataProps.Any(p => p.Key == "genotype_hash")) return null;
-            return model.Graph.Node
-                .SelectMany(n => n.Name.Split('/'))
-                .Select(segment => segment.IndexOf(':') is var colon and > 0 ? segment[(colon + 1)..] : "")
-                .Where(name => name.Length > 0 && !Primitives.IsPrimitive(name) && name is not ("concat" or "sum"))
-                .ToHashSet(StringComparer.Ordinal);
-        }
-        catch (Google.Protobuf.InvalidProtocolBufferException) { return null; }
+        try { return OnnxFormat.ModelProto.Parser.ParseFrom(bytes).MetadataProps.Any(p => p.Key == "genotype_hash"); }
+        catch (Google.Protobuf.InvalidProtocolBufferException) { return false; }
     }
 
-    private static (byte[] Bytes, IReadOnlySet<string>? Motifs, string Description) Load(string path, Func<Skeleton> skeleton, Func<CompileOptions> options)
+    private static (byte[] Bytes, bool Ours, string Description) Load(string path, Func<Skeleton> skeleton, Func<CompileOptions> options, IReadOnlyList<int> batches)
     {
         if (!Path.GetExtension(path).Equals(".onnx", StringComparison.OrdinalIgnoreCase))
         {
             var genotype = GenotypeReader.ReadFile(path);
             var resolved = skeleton();
+            RequireRunnable(path, resolved.Input.Channels * (long)resolved.Input.Height * resolved.Input.Width, batches, null);
             CompiledModel model;
             try { model = Compiler.Compile(genotype, resolved, options()); }
             catch (Graph.CompileException e) { throw new InputException(path, "", e.Message); }
-            var motifs = genotype.Levels.Take(genotype.Levels.Count - 1).SelectMany(l => l.Motifs).Select(m => m.Name).ToHashSet(StringComparer.Ordinal);
-            return (model.OnnxBytes, motifs, $"genotype {genotype.Name} on {CompileReport.DescribeSkeleton(resolved)}");
+            catch (Lowering.DeadCellException e) { throw e.In(path); }
+            RequireRunnable(path, 0, batches, model.Figures);
+            return (model.OnnxBytes, true, $"genotype {genotype.Name} on {CompileReport.DescribeSkeleton(resolved)}");
         }
-        try
-        {
-            var info = new FileInfo(path);
-            if (!info.Exists) throw new InputException(path, "", "file not found");
-            if (info.Length > Input.Limits.MaxModelBytes) throw new InputException(path, "", "models over 2 GiB (external data) are not supported");
-            var bytes = File.ReadAllBytes(path);
-            return (bytes, OwnMotifs(bytes), "ONNX model");
-        }
-        catch (IOException e) { throw new InputException(path, "", $"cannot read the file: {e.Message}"); }
+        var bytes = BoundedFile.ReadAll(path, Input.Limits.MaxModelBytes, "an ONNX model (external data is not supported)");
+        return (bytes, MadeByUs(bytes), "ONNX model");
+    }
+
+    /// <summary>
+    /// Refuses, before anything is allocated, a batch whose input cannot be one array, or whose run
+    /// would need more than half the memory available (estimated: weights three times, and the peak
+    /// activations of the batch twice over).
+    /// </summary>
+    private static void RequireRunnable(string path, long inputPerSample, IReadOnlyList<int> batches, Figures.NetworkFigures? figures)
+    {
+        var batch = batches.Max();
+        if (inputPerSample > 0 && (Int128)inputPerSample * batch > Array.MaxLength)
+            throw new InputException(path, "--batch",
+                $"batch {batch} of {inputPerSample:N0} input values each needs {(Int128)inputPerSample * batch:N0} values in one tensor, more than the {Array.MaxLength:N0} allowed; use a smaller --batch");
+        if (figures is null) return;
+        var needed = (Int128)figures.WeightBytes * 3 + (Int128)figures.PeakActivationBytes * batch * 2;
+        var available = Screening.MemoryGuard.DefaultCapacity;
+        if (needed > available)
+            throw new InputException(path, "--batch",
+                $"batch {batch} needs about {Formatting.Bytes((long)Int128.Min(needed, long.MaxValue))} of memory, more than the {Formatting.Bytes(available)} " +
+                "(half of what is available) a measurement may use; use a smaller --batch");
     }
 }
 

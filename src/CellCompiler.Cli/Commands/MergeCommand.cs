@@ -1,6 +1,7 @@
 using System.CommandLine;
 using System.Text.Json;
-using CellCompiler.Screening;
+using CellCompiler.Cli.Output;
+using CellCompiler.Screening.Merging;
 
 namespace CellCompiler.Cli.Commands;
 
@@ -58,7 +59,7 @@ public static class MergeCommand
 
             if (parse.GetValue(json))
             {
-                using var stdout = Console.OpenStandardOutput();
+                using var stdout = StandardStreams.Output();
                 WriteJson(stdout, report);
             }
             else
@@ -147,15 +148,15 @@ public static class MergeCommand
         var from = report.Population is null
             ? "no population given"
             : $"{report.Expected:N0} ids expected from {report.Population}";
-        to.WriteLine($"merge: wrote {report.Records:N0} records to {report.Output} ({from})");
+        to.WriteLine($"merge: wrote {Formatting.Plural(report.Records, "record")} to {TerminalText.Safe(report.Output)} ({TerminalText.Safe(from)})");
         foreach (var s in report.Shards)
         {
-            var parts = new List<string> { $"{s.Lines:N0} lines", $"{s.Kept:N0} kept" };
+            var parts = new List<string> { Formatting.Plural(s.Lines, "line"), $"{s.Kept:N0} kept" };
             if (s.Duplicates > 0) parts.Add($"{s.Duplicates:N0} duplicated");
             if (s.Malformed > 0) parts.Add($"{s.Malformed:N0} malformed");
             if (s.Partial > 0) parts.Add("last line cut");
             if (s.Blank > 0) parts.Add($"{s.Blank:N0} blank");
-            to.WriteLine($"  {s.File}: {string.Join(", ", parts)}");
+            to.WriteLine($"  {TerminalText.Safe(s.File)}: {string.Join(", ", parts)}");
         }
 
         if (report.Population is null)
@@ -177,7 +178,7 @@ public static class MergeCommand
         var count = total ?? items.Count;
         if (count == 0) return;
         to.WriteLine($"{title}: {count:N0}");
-        foreach (var item in items.Take(Listed)) to.WriteLine($"  {show(item)}");
+        foreach (var item in items.Take(Listed)) to.WriteLine($"  {TerminalText.Safe(show(item))}");
         if (count > Listed) to.WriteLine($"  ... and {count - Listed:N0} more");
     }
 }

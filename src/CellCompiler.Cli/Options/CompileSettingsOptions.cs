@@ -12,6 +12,7 @@ public sealed class CompileSettingsOptions
         HelpName = "N",
         Description = "Seed of the weight generator; changes only weight values.",
         DefaultValueFactory = _ => 0,
+        CustomParser = HumanNumber.LongNumber,
     };
 
     public Option<int> Opset { get; } = new("--opset")
@@ -19,17 +20,8 @@ public sealed class CompileSettingsOptions
         HelpName = "N",
         Description = $"ONNX opset to target, {OnnxVersions.MinOpset} to {OnnxVersions.MaxOpset}.",
         DefaultValueFactory = _ => OnnxVersions.DefaultOpset,
+        CustomParser = r => HumanNumber.WholeNumber(OnnxVersions.MinOpset, OnnxVersions.MaxOpset)(r),
     };
-
-    public CompileSettingsOptions()
-    {
-        Opset.Validators.Add(result =>
-        {
-            var value = result.GetValueOrDefault<int>();
-            if (value is < OnnxVersions.MinOpset or > OnnxVersions.MaxOpset)
-                result.AddError($"--opset must be between {OnnxVersions.MinOpset} and {OnnxVersions.MaxOpset}, found {value}");
-        });
-    }
 
     public void AddTo(Command command)
     {

@@ -7,9 +7,9 @@ namespace CellCompiler.Cli.Options;
 /// <summary>How latency is measured, shared by `check` and `bench`.</summary>
 public sealed class LatencyOptions
 {
-    public Option<int> Threads { get; } = new("--threads") { HelpName = "N", Description = "ONNX Runtime intra-op threads.", DefaultValueFactory = _ => 1 };
-    public Option<int> Warmup { get; } = new("--warmup") { HelpName = "N", Description = "Untimed runs before timing.", DefaultValueFactory = _ => 10 };
-    public Option<int> Runs { get; } = new("--runs") { HelpName = "N", Description = "Timed runs (at least).", DefaultValueFactory = _ => 50 };
+    public Option<int> Threads { get; } = new("--threads") { HelpName = "N", Description = "ONNX Runtime intra-op threads.", DefaultValueFactory = _ => 1, CustomParser = r => HumanNumber.WholeNumber(1, 256)(r) };
+    public Option<int> Warmup { get; } = new("--warmup") { HelpName = "N", Description = "Untimed runs before timing.", DefaultValueFactory = _ => 10, CustomParser = r => HumanNumber.WholeNumber(0, 100_000)(r) };
+    public Option<int> Runs { get; } = new("--runs") { HelpName = "N", Description = "Timed runs (at least).", DefaultValueFactory = _ => 50, CustomParser = r => HumanNumber.WholeNumber(1, 1_000_000)(r) };
     public Option<double> MinSeconds { get; } = new("--min-seconds") { HelpName = "S", Description = "Keep timing until this many seconds of timed runs have passed.", DefaultValueFactory = _ => 0 };
     public Option<string> Batch { get; } = new("--batch") { HelpName = "a,b,c", Description = "Batch sizes to measure, e.g. 1,8,32.", DefaultValueFactory = _ => "1" };
 
@@ -33,7 +33,7 @@ public sealed class LatencyOptions
         var batches = new List<int>();
         foreach (var part in text.Split(','))
         {
-            if (!int.TryParse(part.Trim(), out var batch) || batch is < 1 or > 65_536)
+            if (!int.TryParse(part.Trim(), System.Globalization.NumberStyles.None, System.Globalization.CultureInfo.InvariantCulture, out var batch) || batch is < 1 or > 65_536)
                 throw Bad("--batch", $"'{text}' is not a list of batch sizes from 1 to 65536");
             if (!batches.Contains(batch)) batches.Add(batch);
         }

@@ -1,6 +1,7 @@
 using System.Globalization;
 using System.Text.Json;
 using CellCompiler.Cli.Commands;
+using CellCompiler.Runtime;
 using CellCompiler.Screening;
 
 namespace CellCompiler.Cli.Output;
@@ -13,8 +14,8 @@ public static class BenchReport
     public static void WriteText(TextWriter output, BenchResult result)
     {
         var l = result.Latency;
-        output.WriteLine($"{result.Path}: {result.Description}");
-        output.WriteLine($"CPU: {l.Processor}; ONNX Runtime {l.RuntimeVersion}; {l.Threads} intra-op thread(s)");
+        output.WriteLine($"{TerminalText.Safe(result.Path)}: {TerminalText.Safe(result.Description)}");
+        output.WriteLine($"CPU: {TerminalText.Safe(l.Processor)}; ONNX Runtime {l.RuntimeVersion}; {Formatting.Plural(l.Threads, "intra-op thread")}");
         output.WriteLine();
         output.WriteLine($"{"batch",6} {"runs",6} {"min ms",10} {"p50 ms",10} {"p90 ms",10} {"mean ms",10} {"std ms",9} {"samples/s",11}  output");
         foreach (var b in l.Batches)
@@ -25,13 +26,22 @@ public static class BenchReport
             output.WriteLine();
             output.WriteLine($"Kernel time by {(breakdown.ByOpType ? "op type" : "part")} at batch {l.Batches[0].Batch} ({Ms(breakdown.MicrosecondsPerRun / 1000)} ms of kernel time per profiled run, profiler on):");
             foreach (var part in breakdown.Parts)
-                output.WriteLine($"  {part.Part,-24} {Ms(part.Microseconds / 1000 / Math.Max(1, breakdown.Runs)),10} ms/run {part.Percent,6:0.0}%");
+                output.WriteLine($"  {TerminalText.Safe(part.Part),-24} {Ms(part.Microseconds / 1000 / Math.Max(1, breakdown.Runs)),10} ms/run {part.Percent,6:0.0}%");
             if (breakdown.TopMotifs.Count > 0)
             {
                 output.WriteLine("Top motifs (time of every node under the motif, all uses):");
                 foreach (var motif in breakdown.TopMotifs)
-                    output.WriteLine($"  {motif.Part,-24} {motif.Percent,6:0.0}%");
+                    output.WriteLine($"  {TerminalText.Safe(motif.Part),-24} {motif.Percent,6:0.0}%");
             }
+        }
+        var noisy = l.Batches.Where(b => b.Noisy).ToList();
+        if (noisy.Count > 0)
+        {
+            output.WriteLine();
+            foreach (var b in noisy)
+                output.WriteLine($"Noisy measurement at batch {b.Batch}: p90 is {Formatting.Significant(b.P90Ms / b.P50Ms)} x p50 " +
+                                 $"(above {LatencyStats.NoisyRatio} x), so p50 may mislead.");
+            output.WriteLine("Measure longer (e.g. --min-seconds 5) or with fewer background jobs on this machine.");
         }
         output.WriteLine();
         output.WriteLine("CPU latency measured here does not transfer to other hardware, thread counts or runtime versions.");
@@ -45,7 +55,10 @@ public static class BenchReport
             writer.WriteString("model", result.Path);
             writer.WriteString("description", result.Description);
             writer.WritePropertyName("latency");
-            CheckRecordJson.WriteLatency(writer, result.Latency);
+            System.Text.Json.JsonSerializer.Serialize(writer, result.Latency.Rounded(), ScreeningJson.Readable.LatencyReport);
+            writer.WriteStartArray("noisy_batches");
+            foreach (var b in result.Latency.Batches.Where(b => b.Noisy)) writer.WriteNumberValue(b.Batch);
+            writer.WriteEndArray();
             writer.WriteStartArray("output_shapes");
             foreach (var b in result.Latency.Batches)
             {

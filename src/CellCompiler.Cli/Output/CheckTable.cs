@@ -3,7 +3,7 @@ using CellCompiler.Screening;
 
 namespace CellCompiler.Cli.Output;
 
-/// <summary>The human view of `check`: one row per candidate as it finishes.</summary>
+/// <summary>The human view of `check`: one row per candidate as it finishes; file-borne text is made safe to print.</summary>
 public sealed class CheckTable(TextWriter output, bool withLatency)
 {
     public void WriteHeader()
@@ -14,12 +14,11 @@ public sealed class CheckTable(TextWriter output, bool withLatency)
 
     public void WriteRow(CheckRecord r)
     {
-        var f = r.Figures;
-        var latency = withLatency ? $" {(r.Latency?.AtBatch(1) is { } one ? one.P50Ms.ToString("0.000") : "-"),9}" : "";
+        var latency = withLatency ? $" {(r.LatencyMs is { } ms ? Formatting.Significant(ms) : "-"),9}" : "";
         output.WriteLine(
-            $"{Fit(r.Id, 20),-20} {r.Status.Name(),-11} {(f is null ? "-" : Formatting.Scaled(f.Params)),10} " +
-            $"{(f is null ? "-" : Formatting.Scaled(f.Macs)),10} {(f is null ? "-" : (f.PeakActivationBytes / 1e6).ToString("0.00")),8} " +
-            $"{(r.TrainMemoryBytes is { } t ? (t / 1e9).ToString("0.000") : "-"),9}{latency}  {r.Reason ?? ""}");
+            $"{Fit(TerminalText.Safe(r.Id), 20),-20} {r.Status.Name(),-11} {(r.Params is { } p ? Formatting.Scaled(p) : "-"),10} " +
+            $"{(r.Macs is { } m ? Formatting.Scaled(m) : "-"),10} {(r.PeakActivationBytes is { } a ? Formatting.Significant(a / 1e6) : "-"),8} " +
+            $"{(r.TrainMemoryBytes is { } t ? Formatting.Significant(t / 1e9) : "-"),9}{latency}  {TerminalText.Safe(r.Reason)}");
     }
 
     /// <summary>The cautions that go with the figures.</summary>
@@ -27,7 +26,7 @@ public sealed class CheckTable(TextWriter output, bool withLatency)
     {
         output.WriteLine("Memory figures are estimates (float32; training: activations kept at --train-batch plus 4 copies of every parameter).");
         if (anyLatency is { } l)
-            output.WriteLine($"Latency: CPU, {l.Processor}, ONNX Runtime {l.RuntimeVersion}, {l.Threads} thread(s). It does not transfer to other hardware.");
+            output.WriteLine($"Latency: CPU, {TerminalText.Safe(l.Processor)}, ONNX Runtime {l.RuntimeVersion}, {Formatting.Plural(l.Threads, "thread")}. It does not transfer to other hardware.");
     }
 
     private static string Fit(string text, int width) => text.Length <= width ? text : text[..(width - 1)] + "~";

@@ -2,33 +2,57 @@ using System.Globalization;
 
 namespace CellCompiler.Cli.Output;
 
-/// <summary>Human-friendly numbers: exact count plus a short scaled form.</summary>
+/// <summary>
+/// Numbers as a person reads them, the same in every command: decimal units (k = 10^3, MB = 10^6
+/// bytes, GB = 10^9 bytes, as the budgets use) and three significant digits, so that the figures of
+/// a column read alike ("46.3 M" beside "45.6 M", "3.45%" beside "36.0%").
+/// </summary>
 public static class Formatting
 {
     private static readonly CultureInfo Invariant = CultureInfo.InvariantCulture;
 
+    /// <summary>The exact count, and for large ones its short form: "11,242,112 (11.2 M)".</summary>
     public static string Count(long value) => value < 10_000
         ? value.ToString("N0", Invariant)
         : $"{value.ToString("N0", Invariant)} ({Scaled(value)})";
 
-    public static string Scaled(double value) => value switch
+    /// <summary>A count in k, M, G or T with three significant digits: "76.1 k", "4.00 M", "512".</summary>
+    public static string Scaled(double value) => Math.Abs(value) switch
     {
-        >= 1e12 => (value / 1e12).ToString("0.##", Invariant) + " T",
-        >= 1e9 => (value / 1e9).ToString("0.##", Invariant) + " G",
-        >= 1e6 => (value / 1e6).ToString("0.##", Invariant) + " M",
-        >= 1e3 => (value / 1e3).ToString("0.##", Invariant) + " k",
-        _ => value.ToString("0.##", Invariant),
+        >= 999.5e9 => Significant(value / 1e12) + " T",
+        >= 999.5e6 => Significant(value / 1e9) + " G",
+        >= 999.5e3 => Significant(value / 1e6) + " M",
+        >= 999.5 => Significant(value / 1e3) + " k",
+        _ => value == Math.Floor(value) ? value.ToString("0", Invariant) : Significant(value),
     };
+
+    /// <summary>Bytes in decimal units with three significant digits: "262 kB", "2.19 MB", "1.52 GB".</summary>
+    public static string Bytes(long bytes) => Math.Abs((double)bytes) switch
+    {
+        >= 999.5e9 => Significant(bytes / 1e12) + " TB",
+        >= 999.5e6 => Significant(bytes / 1e9) + " GB",
+        >= 999.5e3 => Significant(bytes / 1e6) + " MB",
+        >= 999.5 => Significant(bytes / 1e3) + " kB",
+        _ => bytes.ToString(Invariant) + " B",
+    };
+
+    /// <summary>Three significant digits, trailing zeros kept ("4.00", "45.6", "123"); larger values whole.</summary>
+    public static string Significant(double value)
+    {
+        if (value == 0 || !double.IsFinite(value)) return value.ToString("0", Invariant);
+        var magnitude = (int)Math.Floor(Math.Log10(Math.Abs(value)));
+        var decimals = Math.Max(0, 2 - magnitude);
+        var rounded = Math.Round(value, decimals);
+        // Rounding can carry into the next power of ten (9.996 -> 10.00): show 10.0, not 10.00.
+        if (rounded != 0 && (int)Math.Floor(Math.Log10(Math.Abs(rounded))) > magnitude) decimals = Math.Max(0, decimals - 1);
+        return rounded.ToString(decimals == 0 ? "#,0" : "F" + decimals, Invariant);
+    }
+
+    /// <summary>A count with its noun, singular or plural: "1 line", "2 lines", "1,000 candidates".</summary>
+    public static string Plural(long count, string singular, string? plural = null) =>
+        $"{count.ToString("N0", Invariant)} {(count == 1 ? singular : plural ?? singular + "s")}";
 
     public static string Duration(TimeSpan span) => span.TotalHours >= 1
         ? $"{(int)span.TotalHours}h{span.Minutes:00}m"
         : span.TotalMinutes >= 1 ? $"{(int)span.TotalMinutes}m{span.Seconds:00}s" : $"{span.Seconds}s";
-
-    public static string Bytes(long bytes) => bytes switch
-    {
-        >= 1L << 30 => (bytes / (double)(1L << 30)).ToString("0.##", Invariant) + " GiB",
-        >= 1L << 20 => (bytes / (double)(1L << 20)).ToString("0.##", Invariant) + " MiB",
-        >= 1L << 10 => (bytes / (double)(1L << 10)).ToString("0.##", Invariant) + " KiB",
-        _ => bytes.ToString(Invariant) + " B",
-    };
 }

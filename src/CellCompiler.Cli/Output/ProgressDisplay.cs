@@ -6,22 +6,25 @@ namespace CellCompiler.Cli.Output;
 
 /// <summary>
 /// Progress of a screening run on stderr: a live line on a terminal (Spectre.Console), otherwise a
-/// plain line every few seconds, so that logs of batch jobs stay readable.
+/// plain line every few seconds and always a final one, so that logs of batch jobs stay readable and
+/// end with the totals. Counts include the records of an earlier run that this one resumed, out of
+/// the candidates of the whole input (or shard), so "done" never passes the total.
 /// </summary>
 public sealed class ProgressDisplay : IDisposable
 {
     private static readonly TimeSpan PlainInterval = TimeSpan.FromSeconds(5);
     private static readonly TimeSpan LiveInterval = TimeSpan.FromMilliseconds(200);
 
-    private readonly long? _total;
     private readonly Stopwatch _clock = Stopwatch.StartNew();
     private readonly IAnsiConsole? _console;
+    private long? _total;
+    private long _resumed;
     private TimeSpan _lastShown = TimeSpan.Zero;
     private bool _liveLineShown;
+    private ScreeningSummary? _last;
 
-    public ProgressDisplay(long? total, bool enabled)
+    public ProgressDisplay(bool enabled)
     {
-        _total = total;
         Enabled = enabled;
         if (enabled && !Console.IsErrorRedirected)
             _console = AnsiConsole.Create(new AnsiConsoleSettings { Out = new AnsiConsoleOutput(Console.Error) });
@@ -29,9 +32,16 @@ public sealed class ProgressDisplay : IDisposable
 
     public bool Enabled { get; }
 
+    public void Start(ScreeningStart start)
+    {
+        _total = start.Total;
+        _resumed = start.Resumed;
+    }
+
     /// <summary>Called after each record (never concurrently); shows progress when it is time to.</summary>
     public void Update(ScreeningSummary summary, bool force = false)
     {
+        _last = summary;
         if (!Enabled) return;
         var now = _clock.Elapsed;
         if (!force && now - _lastShown < (_console is null ? PlainInterval : LiveInterval)) return;
@@ -51,13 +61,21 @@ public sealed class ProgressDisplay : IDisposable
         _liveLineShown = true;
     }
 
+    /// <summary>The final progress line, on a terminal and in logs alike.</summary>
+    public void Finish()
+    {
+        if (_last is { } summary) Update(summary, force: true);
+    }
+
     private string Describe(ScreeningSummary s, TimeSpan elapsed)
     {
-        var rate = elapsed.TotalSeconds > 0 ? s.Done / elapsed.TotalSeconds : 0;
+        var checkedHere = s.Done - _resumed;
+        var rate = elapsed.TotalSeconds > 0 ? checkedHere / elapsed.TotalSeconds : 0;
         var done = _total is { } total ? $"{s.Done:N0}/{total:N0}" : $"{s.Done:N0}";
         var left = _total is { } t && rate > 0 && t > s.Done ? $", ~{Formatting.Duration(TimeSpan.FromSeconds((t - s.Done) / rate))} left" : "";
-        var counts = string.Join(", ", Enum.GetValues<CheckStatus>().Select(st => $"{st.Name()} {s.Count(st):N0}"));
-        return $"{done} done ({rate:0.0}/s{left}): {counts}" + (s.Cached > 0 ? $", {s.Cached:N0} from cache" : "");
+        var counts = string.Join(", ", CheckStatusNames.All.Select(st => $"{st.Name()} {s.Count(st):N0}"));
+        var resumed = _resumed > 0 ? $", {_resumed:N0} from the earlier run" : "";
+        return $"{done} done ({rate:0.0}/s{left}{resumed}): {counts}" + (s.Cached > 0 ? $", {s.Cached:N0} from cache" : "");
     }
 
     public void Dispose()

@@ -7,8 +7,8 @@ public static class ScreeningReport
 {
     public static void Write(TextWriter output, ScreeningSummary summary, TimeSpan elapsed)
     {
-        var counts = string.Join(", ", Enum.GetValues<CheckStatus>().Select(s => $"{s.Name()} {summary.Count(s):N0}"));
-        output.WriteLine($"{summary.Done:N0} candidate(s): {counts}");
+        var counts = string.Join(", ", CheckStatusNames.All.Select(s => $"{s.Name()} {summary.Count(s):N0}"));
+        output.WriteLine($"{Formatting.Plural(summary.Done, "candidate")}: {counts}");
         output.WriteLine($"Checked in {Formatting.Duration(elapsed)}" +
                          (summary.Cached > 0 ? $"; {summary.Cached:N0} answered from the cache." : "."));
         var reasons = summary.TopReasons(5);
@@ -16,21 +16,21 @@ public static class ScreeningReport
         {
             output.WriteLine("Most frequent reasons:");
             foreach (var (reason, count) in reasons)
-                output.WriteLine($"  {count,8:N0}  {reason}");
+                output.WriteLine($"  {count,8:N0}  {TerminalText.Safe(reason)}");
         }
         WriteFront(output, "params against MACs", summary.ParamsVsMacs, "MACs", y => Formatting.Scaled(y));
         if (summary.LatencyMeasured)
-            WriteFront(output, "params against latency p50", summary.ParamsVsLatency, "p50", y => $"{y:0.000} ms");
+            WriteFront(output, "params against latency p50", summary.ParamsVsLatency, "p50", y => $"{Formatting.Significant(y)} ms");
     }
 
     private static void WriteFront(TextWriter output, string title, ParetoFront front, string yName, Func<double, string> formatY)
     {
         var points = front.Points;
         if (points.Count == 0) return;
-        output.WriteLine($"Pareto front of ok candidates, {title} ({points.Count}):");
+        output.WriteLine($"Pareto front of ok candidates, {title} ({points.Count:N0}):");
         foreach (var p in points.Take(20))
-            output.WriteLine($"  {p.Id,-24} params {Formatting.Scaled(p.X),-9} {yName} {formatY(p.Y)}" +
+            output.WriteLine($"  {TerminalText.Safe(p.Id),-24} params {Formatting.Scaled(p.X),-9} {yName} {formatY(p.Y)}" +
                              (p.Ties > 0 ? $"  (and {p.Ties:N0} more with equal figures)" : ""));
-        if (points.Count > 20) output.WriteLine($"  ... and {points.Count - 20} more");
+        if (points.Count > 20) output.WriteLine($"  ... and {points.Count - 20:N0} more");
     }
 }

@@ -34,6 +34,7 @@ public static class DemoRun
         var clock = Stopwatch.StartNew();
         var target = Path.TrimEndingDirectorySeparator(Path.GetFullPath(folder));
         RequireReplaceable(target);
+        RemoveStale(target);
         var building = $"{target}.building-{Environment.ProcessId}";
         if (Directory.Exists(building)) Directory.Delete(building, recursive: true);
         Directory.CreateDirectory(building);
@@ -69,35 +70,31 @@ public static class DemoRun
 
             // 2. A generated population, screened with the scenario's budgets; latency for the survivors.
             var populationPath = Place("population.jsonl", $"{DemoData.PopulationSize} generated genotypes");
-            var sampler = new GenotypeSampler(DemoData.PopulationNodes, DemoData.PopulationMotifs, seed: DemoData.PopulationSeed);
+            File.WriteAllText(Place("primitives.json", "the team's declared primitives (cellc sample --primitives)"), DemoData.PrimitivesJson.Trim() + "\n");
+            var sampler = new GenotypeSampler(DemoData.PopulationNodes, DemoData.PopulationMotifs, seed: DemoData.PopulationSeed,
+                primitives: DemoData.Primitives, ops: DemoData.PopulationOps);
             using (var writer = new StreamWriter(populationPath))
                 foreach (var genotype in sampler.Sample(DemoData.PopulationSize))
                     writer.Write(GenotypeJson.Serialize(genotype, genotype.Id) + "\n");
 
             progress?.Invoke($"screening {DemoData.PopulationSize} candidates");
-            var options = new CheckOptions(SkeletonPresets.All["proxy"], CompileOptions.Default,
-                new Budgets(MaxParams: DemoData.MaxParams, MaxMacs: DemoData.MaxMacs),
-                Latency: new LatencySettings(Threads: 1, Warmup: 3, Runs: 20));
-            var summary = new ScreeningSummary();
             var resultsPath = Place("results.jsonl", "one check record per candidate (cellc check --json)");
-            using (var gate = new ExclusiveGate())
-            using (var log = ResultLog.Create(resultsPath))
-            using (var reader = new StreamReader(populationPath))
+            var screening = ScreeningSession.Run(new ScreeningRequest
             {
-                var checker = new CandidateChecker(options, cache: null, gate);
-                ScreeningRun.Execute(PopulationReader.Read(reader, populationPath), _ => true, checker.Check,
-                    new RunSettings(Environment.ProcessorCount, Ordered: true),
-                    record =>
-                    {
-                        log.Append(CheckRecordJson.ToLine(record));
-                        summary.Add(record);
-                    });
-            }
+                Inputs = [populationPath],
+                Options = new CheckOptions(SkeletonPresets.All["proxy"], CompileOptions.Default,
+                    new Budgets(MaxParams: DemoData.MaxParams, MaxMacs: DemoData.MaxMacs),
+                    Latency: new LatencySettings(Threads: 1, Warmup: 3, Runs: 20)),
+                Ordered = true,
+                OutPath = resultsPath,
+                WriteSettings = false,
+            }, new Quiet(), () => Stream.Null);
+            var summary = screening.Summary;
 
             // 3. The report, with the pictures of the Pareto-front cells.
             progress?.Invoke("writing the report");
             ReportResult report;
-            using (var results = new StreamReader(resultsPath))
+            using (var results = File.OpenRead(resultsPath))
                 report = HtmlReport.Build(results, "results.jsonl", new ReportOptions
                 {
                     Title = "Tide-pool classifier: search generation 7",
@@ -106,13 +103,10 @@ public static class DemoRun
                     DrawCell = CellRenderer.Svg,
                 });
             File.WriteAllBytes(Place("report.html", "the screening report (open in a browser; self-contained)"), report.Utf8());
-            using (var reader = new StreamReader(populationPath))
-            {
-                var front = summary.ParamsVsMacs.Points.Select(p => p.Id).ToHashSet(StringComparer.Ordinal);
-                foreach (var candidate in PopulationReader.Read(reader, populationPath))
-                    if (front.Contains(candidate.Id) && candidate.Genotype is { } genotype)
-                        File.WriteAllText(Place($"pictures/front-{candidate.Id}.svg", $"picture of Pareto-front cell {candidate.Id}"), CellRenderer.Svg(genotype));
-            }
+            var front = summary.ParamsVsMacs.Points.Select(p => p.Id).ToHashSet(StringComparer.Ordinal);
+            foreach (var candidate in PopulationReader.ReadFile(populationPath))
+                if (front.Contains(candidate.Id) && candidate.Genotype is { } genotype)
+                    File.WriteAllText(Place($"pictures/front-{candidate.Id}.svg", $"picture of Pareto-front cell {candidate.Id}"), CellRenderer.Svg(genotype));
 
             SwapIn(building, target);
             return new DemoResult(target, compiled, summary, files, clock.Elapsed);
@@ -134,6 +128,33 @@ public static class DemoRun
             throw new InputException(target, "", "is the current folder or holds it; the demo replaces its folder whole, so choose a folder below this one");
         if (Directory.Exists(target) && Directory.EnumerateFileSystemEntries(target).Any() && !File.Exists(Path.Combine(target, Marker)))
             throw new InputException(target, "", "exists and was not made by `cellc demo`; choose another folder with --dir");
+    }
+
+    /// <summary>Folders `TARGET.building-PID` and `TARGET.old-PID` of demo runs that were killed (their process is gone).</summary>
+    private static void RemoveStale(string target)
+    {
+        var parent = Path.GetDirectoryName(target)!;
+        var name = Path.GetFileName(target);
+        IEnumerable<string> folders;
+        try { folders = Directory.EnumerateDirectories(parent, name + ".*-*").ToList(); }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException) { return; }
+        foreach (var folder in folders)
+        {
+            var suffix = Path.GetFileName(folder)[(name.Length + 1)..];
+            var dash = suffix.LastIndexOf('-');
+            if (dash < 0 || suffix[..dash] is not ("building" or "old")) continue;
+            if (!int.TryParse(suffix[(dash + 1)..], System.Globalization.NumberStyles.None, System.Globalization.CultureInfo.InvariantCulture, out var pid)) continue;
+            if (Io.AtomicFile.ProcessIsRunning(pid)) continue;
+            try { Directory.Delete(folder, recursive: true); } catch (Exception e) when (e is IOException or UnauthorizedAccessException) { }
+        }
+    }
+
+    /// <summary>The demo prints its own summary; warnings of the screening cannot occur on its own data.</summary>
+    private sealed class Quiet : IScreeningObserver
+    {
+        public void Started(ScreeningStart start) { }
+        public void Checked(CheckRecord record, ScreeningSummary summary) { }
+        public void Warning(string message) => throw new InvalidOperationException($"the demo's own screening warned: {message}");
     }
 
     private static void SwapIn(string building, string target)

@@ -81,6 +81,25 @@ public readonly record struct NodePath(string Value)
         return ops;
     }
 
+    /// <summary>
+    /// The motifs applied on a node's path, outermost first: the ops of edges under which another edge
+    /// or a merge follows (the innermost edge of a layer applies a primitive, whose layers follow it).
+    /// </summary>
+    public static IReadOnlyList<string> AppliedMotifs(string nodeName)
+    {
+        var motifs = new List<string>();
+        string? pending = null;
+        foreach (var segment in nodeName.Split(Separator))
+        {
+            var colon = segment.IndexOf(':');
+            var isEdge = colon > 1 && segment[0] == 'e' && IsDigits(segment.AsSpan(1, colon - 1)) && colon + 1 < segment.Length;
+            var isMerge = colon > 1 && segment[0] == 'n' && IsDigits(segment.AsSpan(1, colon - 1));
+            if ((isEdge || isMerge) && pending is not null) motifs.Add(pending);
+            pending = isEdge ? segment[(colon + 1)..] : null;
+        }
+        return motifs;
+    }
+
     private static int? Number(string segment, string prefix) =>
         segment.StartsWith(prefix, StringComparison.Ordinal) && segment.Length > prefix.Length && IsDigits(segment.AsSpan(prefix.Length))
         && int.TryParse(segment.AsSpan(prefix.Length), NumberStyles.None, CultureInfo.InvariantCulture, out var n) ? n : null;

@@ -20,7 +20,7 @@ public static partial class GenotypeReader
     private static partial Regex MotifNamePattern();
 
     public static Genotype ReadFile(string path) =>
-        Parse(BoundedFile.Read(path, Limits.MaxJsonBytes, "a genotype file"), path, Path.GetFileNameWithoutExtension(path));
+        Parse(Io.BoundedFile.ReadAll(path, Limits.MaxJsonBytes, "a genotype file"), path, Path.GetFileNameWithoutExtension(path));
 
     /// <summary>Parses one genotype document. <paramref name="defaultName"/> is used when the document has no name.</summary>
     /// <remarks>An `id` (a population line's field) is accepted everywhere, so a line saved as a file still compiles.</remarks>

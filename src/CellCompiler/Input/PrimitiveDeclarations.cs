@@ -17,7 +17,7 @@ public static partial class PrimitiveDeclarations
     private static partial Regex NamePattern();
 
     /// <summary>A file holding one JSON object of declarations (e.g. for `cellc sample --primitives`).</summary>
-    public static PrimitiveTable ReadFile(string path) => Parse(BoundedFile.Read(path, Limits.MaxJsonBytes, "a primitives file"), path);
+    public static PrimitiveTable ReadFile(string path) => Parse(Io.BoundedFile.ReadAll(path, Limits.MaxJsonBytes, "a primitives file"), path);
 
     /// <summary>One JSON object of declarations; <paramref name="origin"/> names it in errors.</summary>
     public static PrimitiveTable Parse(ReadOnlyMemory<byte> utf8, string origin)

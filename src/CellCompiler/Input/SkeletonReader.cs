@@ -12,7 +12,7 @@ public static class SkeletonReader
         if (!File.Exists(presetOrPath) && !Directory.Exists(presetOrPath))
             throw new InputException(presetOrPath, "",
                 $"not a preset ({string.Join(", ", SkeletonPresets.All.Keys)}) and no such file");
-        var bytes = BoundedFile.Read(presetOrPath, Limits.MaxJsonBytes, "a skeleton file");
+        var bytes = Io.BoundedFile.ReadAll(presetOrPath, Limits.MaxJsonBytes, "a skeleton file");
         return Parse(bytes, presetOrPath);
     }
 

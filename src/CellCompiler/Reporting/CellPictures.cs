@@ -1,4 +1,3 @@
-using System.Text;
 using CellCompiler.Input;
 using CellCompiler.Screening;
 
@@ -21,20 +20,11 @@ public static class CellPictures
         var wanted = new HashSet<string>(ids, StringComparer.Ordinal);
         var pictures = new Dictionary<string, CellPicture>(StringComparer.Ordinal);
         if (wanted.Count == 0) return pictures;
-        StreamReader reader;
-        try { reader = new StreamReader(populationPath, Encoding.UTF8, detectEncodingFromByteOrderMarks: true); }
-        catch (Exception e) when (e is IOException or UnauthorizedAccessException or ArgumentException or NotSupportedException)
+        foreach (var candidate in PopulationReader.ReadFile(populationPath))
         {
-            throw new InputException(populationPath, "", $"cannot read the genotypes file: {e.Message}");
-        }
-        using (reader)
-        {
-            foreach (var candidate in PopulationReader.Read(reader, populationPath))
-            {
-                if (!wanted.Contains(candidate.Id) || pictures.ContainsKey(candidate.Id)) continue;
-                pictures[candidate.Id] = Picture(candidate, pictures.Count, draw);
-                if (pictures.Count == wanted.Count) break;
-            }
+            if (!wanted.Contains(candidate.Id) || pictures.ContainsKey(candidate.Id)) continue;
+            pictures[candidate.Id] = Picture(candidate, pictures.Count, draw);
+            if (pictures.Count == wanted.Count) break;
         }
         return pictures;
     }

@@ -31,7 +31,7 @@ public static class HtmlReport
         return Build(resultsPath, summary, table, options);
     }
 
-    public static ReportResult Build(TextReader results, string resultsName, ReportOptions options)
+    public static ReportResult Build(Stream results, string resultsName, ReportOptions options)
     {
         var summary = new ResultsSummary();
         var table = new CandidateTable(options.TableRowLimit);

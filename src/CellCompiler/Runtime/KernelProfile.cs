@@ -18,7 +18,9 @@ public sealed record KernelProfile(IReadOnlyDictionary<string, double> Microseco
             using var session = new InferenceSession(model, options);
             LatencyMeter.RunBound(session, batch, warmup + runs);
             var trace = session.EndProfiling();
-            return Parse(File.ReadAllBytes(Path.IsPathRooted(trace) ? trace : Path.Combine(Environment.CurrentDirectory, trace)), warmup + runs);
+            var path = Path.IsPathRooted(trace) ? trace : Path.Combine(Environment.CurrentDirectory, trace);
+            try { return Parse(File.ReadAllBytes(path), warmup + runs); }
+            finally { Io.AtomicFile.TryDelete(path); } // read once; never left behind, wherever the runtime put it
         }
         finally
         {

@@ -25,8 +25,9 @@ public static class LatencyMeter
         options.AddSessionConfigEntry("session.intra_op.allow_spinning", threads > 1 ? "1" : "0");
         if (profilePrefix is not null)
         {
-            options.EnableProfiling = true;
+            // The prefix first: enabling profiling starts the trace file under the prefix set at that moment.
             options.ProfileOutputPathPrefix = profilePrefix;
+            options.EnableProfiling = true;
         }
         return options;
     }
@@ -67,6 +68,14 @@ public static class LatencyMeter
 
     private static T WithBinding<T>(InferenceSession session, int batch, Func<OrtIoBinding, RunOptions, long[], T> body)
     {
+        foreach (var (name, shape) in ModelInputs.Shapes(session, batch))
+        {
+            // Refused before anything is allocated: one array holds at most Array.MaxLength elements.
+            var elements = shape.Aggregate((Int128)1, (product, d) => product * d);
+            if (elements > Array.MaxLength)
+                throw new NotSupportedException(
+                    $"input '{name}' at batch {batch} would hold {elements:N0} values, more than the {Array.MaxLength:N0} one tensor may hold here; use a smaller --batch");
+        }
         var inputs = ModelInputs.Shapes(session, batch).Select((s, i) => (s.Name, Value: ModelInputs.Random(s.Shape, 100 + i))).ToList();
         using var runOptions = new RunOptions();
         // One unbound run tells the output shapes of foreign models; then outputs are preallocated.

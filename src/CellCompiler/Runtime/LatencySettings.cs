@@ -1,3 +1,5 @@
+using System.Text.Json.Serialization;
+
 namespace CellCompiler.Runtime;
 
 /// <summary>
@@ -10,14 +12,36 @@ public sealed record LatencySettings(int Threads = 1, int Warmup = 10, int Runs 
     public static readonly LatencySettings Default = new();
 }
 
-/// <summary>Timing statistics of one batch size, in milliseconds per run.</summary>
-public sealed record LatencyStats(int Batch, int Runs, double MinMs, double P50Ms, double P90Ms, double MeanMs, double StdMs)
+/// <summary>Timing statistics of one batch size, in milliseconds per run (JSON names: batch, runs, min_ms, p50_ms, ...).</summary>
+public sealed record LatencyStats(
+    int Batch,
+    int Runs,
+    [property: JsonPropertyName("min_ms")] double MinMs,
+    [property: JsonPropertyName("p50_ms")] double P50Ms,
+    [property: JsonPropertyName("p90_ms")] double P90Ms,
+    [property: JsonPropertyName("mean_ms")] double MeanMs,
+    [property: JsonPropertyName("std_ms")] double StdMs)
 {
-    /// <summary>Shape of the model's first output at this batch size.</summary>
+    /// <summary>A p90 above this multiple of p50 marks a noisy measurement (our own rule of thumb).</summary>
+    public const double NoisyRatio = 1.5;
+
+    /// <summary>Shape of the model's first output at this batch size (not part of a check record).</summary>
+    [JsonIgnore]
     public IReadOnlyList<long> OutputShape { get; init; } = [];
 
-    /// <summary>Samples per second at the median run time.</summary>
-    public double SamplesPerSecond => Batch * 1000.0 / P50Ms;
+    /// <summary>Samples per second at the median run time, to 0.1.</summary>
+    public double SamplesPerSecond => P50Ms > 0 ? Math.Round(Batch * 1000.0 / P50Ms, 1) : 0;
+
+    /// <summary>The run times spread so much that p50 may mislead (p90 above 1.5 x p50).</summary>
+    [JsonIgnore]
+    public bool Noisy => P90Ms > NoisyRatio * P50Ms;
+
+    /// <summary>Times to 0.1 microsecond, as records hold them.</summary>
+    public LatencyStats Rounded() => this with
+    {
+        MinMs = Math.Round(MinMs, 4), P50Ms = Math.Round(P50Ms, 4), P90Ms = Math.Round(P90Ms, 4),
+        MeanMs = Math.Round(MeanMs, 4), StdMs = Math.Round(StdMs, 4),
+    };
 
     /// <summary>Statistics of raw run times; percentiles interpolate linearly between order statistics.</summary>
     public static LatencyStats From(int batch, IReadOnlyList<double> runMs)
@@ -37,8 +61,15 @@ public sealed record LatencyStats(int Batch, int Runs, double MinMs, double P50M
     }
 }
 
-/// <summary>A latency measurement with everything needed to reproduce it.</summary>
-public sealed record LatencyReport(IReadOnlyList<LatencyStats> Batches, int Threads, string RuntimeVersion, string Processor)
+/// <summary>A latency measurement with everything needed to reproduce it (JSON: threads, onnxruntime, processor, batches).</summary>
+public sealed record LatencyReport(
+    [property: JsonPropertyOrder(3)] IReadOnlyList<LatencyStats> Batches,
+    [property: JsonPropertyOrder(0)] int Threads,
+    [property: JsonPropertyOrder(1), JsonPropertyName("onnxruntime")] string RuntimeVersion,
+    [property: JsonPropertyOrder(2)] string Processor)
 {
     public LatencyStats? AtBatch(int batch) => Batches.FirstOrDefault(b => b.Batch == batch);
+
+    /// <summary>Times to 0.1 microsecond, as records hold them (so that a record read back equals the one written).</summary>
+    public LatencyReport Rounded() => this with { Batches = Batches.Select(b => b.Rounded() with { OutputShape = b.OutputShape }).ToList() };
 }

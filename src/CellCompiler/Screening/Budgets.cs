@@ -1,14 +1,21 @@
+using System.Text.Json.Serialization;
+
 namespace CellCompiler.Screening;
 
-/// <summary>Optional limits on what a candidate may cost. MB and GB are decimal (10^6 and 10^9 bytes).</summary>
+/// <summary>
+/// Optional limits on what a candidate may cost. MB and GB are decimal (10^6 and 10^9 bytes).
+/// Serialized (run settings, and records when they carry the run's budgets) as max_params, max_macs,
+/// max_activation_mb, max_train_memory_gb, max_latency_ms.
+/// </summary>
 public sealed record Budgets(
-    long? MaxParams = null,
-    long? MaxMacs = null,
-    double? MaxActivationMB = null,
-    double? MaxTrainMemoryGB = null,
-    double? MaxLatencyMs = null)
+    [property: JsonPropertyName("max_params")] long? MaxParams = null,
+    [property: JsonPropertyName("max_macs")] long? MaxMacs = null,
+    [property: JsonPropertyName("max_activation_mb")] double? MaxActivationMB = null,
+    [property: JsonPropertyName("max_train_memory_gb")] double? MaxTrainMemoryGB = null,
+    [property: JsonPropertyName("max_latency_ms")] double? MaxLatencyMs = null)
 {
     public static readonly Budgets None = new();
 
+    [JsonIgnore]
     public bool NeedsLatency => MaxLatencyMs is not null;
 }

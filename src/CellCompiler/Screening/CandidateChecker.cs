@@ -1,9 +1,11 @@
+using System.Text.Json;
 using System.Diagnostics;
 using System.Globalization;
 using CellCompiler.Compilation;
 using CellCompiler.Figures;
 using CellCompiler.Graph;
 using CellCompiler.Hashing;
+using CellCompiler.Input;
 using CellCompiler.Lowering;
 using CellCompiler.Runtime;
 using CellCompiler.Shapes;
@@ -14,11 +16,23 @@ namespace CellCompiler.Screening;
 /// Screens one candidate in memory: compile, run on ONNX Runtime's CPU provider (smoke test),
 /// optionally measure latency, and judge the budgets. Nothing is written to disk. With a cache,
 /// an equivalent genotype (equal hash) checked before under the same settings is answered from it.
+/// Time and memory are bounded: a network of more than <see cref="CheckOptions.MaxRunNodes"/> nodes
+/// or whose run would not fit in the <see cref="MemoryGuard"/> is compiled but not run.
 /// Thread-safe: one checker serves all workers of a run.
 /// </summary>
-public sealed class CandidateChecker(CheckOptions options, IResultCache? cache = null, ExclusiveGate? gate = null)
+public sealed class CandidateChecker(CheckOptions options, IResultCache? cache = null, ExclusiveGate? gate = null, MemoryGuard? memory = null)
 {
+    /// <summary>Kind of the reasons of candidates not run because of this machine's limits.</summary>
+    public const string TooLargeKind = "too large to run here";
+
+    /// <summary>Bytes a compile holds per primitive op of the expanded network (graph, shapes, names), measured with headroom.</summary>
+    private const long CompileBytesPerOp = 16_000;
+
+    /// <summary>ONNX Runtime's own bytes per node of a loaded session (kernels, shapes, names), measured with headroom.</summary>
+    private const long RuntimeBytesPerNode = 40_000;
+
     private readonly ExclusiveGate _gate = gate ?? ExclusiveGate.None;
+    private readonly MemoryGuard _memory = memory ?? MemoryGuard.Unbounded;
     private readonly string _settingsKey =
         $"{options.Skeleton.ToJson()}|seed={options.Compile.Seed}|opset={options.Compile.Opset}|tool={ToolBuild}";
 
@@ -34,13 +48,12 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     {
         var clock = Stopwatch.StartNew();
         if (candidate.Genotype is not { } genotype)
-            return Failed(candidate.Id, null, null, CheckStatus.Invalid, candidate.Error!.Message, "invalid: " + Kind(candidate.Error.Problem), [], clock);
+            return Failed(candidate, null, CheckStatus.Invalid, candidate.Error!.OneLine, "invalid: " + Kind(candidate.Error.Problem), [], clock);
 
         // Everything but the latency measurement is shared work; the measurement waits until none runs.
-        var prepared = _gate.Shared(() => Prepare(genotype));
-        var (hash, warnings, evaluation, cached, model, latencyKey) = prepared;
+        var (hash, warnings, notes, evaluation, cached, model, latencyKey) = _gate.Shared(() => Prepare(genotype));
         if (!evaluation.Works)
-            return Failed(candidate.Id, genotype.Name, hash, evaluation.Failure!.Value, evaluation.FailureReason!, evaluation.FailureKind, warnings, clock, cached);
+            return Failed(candidate, hash, evaluation.Failure!.Value, evaluation.FailureReason!, evaluation.FailureKind, warnings, clock, cached) with { Notes = notes };
 
         var figures = evaluation.Figures!;
         var trainMemory = TrainMemory(evaluation);
@@ -54,11 +67,11 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
                 try
                 {
                     var bytes = model!;
-                    latency = _gate.Exclusive(() => LatencyMeter.Measure(bytes, settings));
+                    latency = _gate.Exclusive(() => LatencyMeter.Measure(bytes, settings)).Rounded();
                 }
-                catch (Exception e)
+                catch (Exception e) when (e is not OutOfMemoryException)
                 {
-                    return Failed(candidate.Id, genotype.Name, hash, CheckStatus.Broken,
+                    return Failed(candidate, hash, CheckStatus.Broken,
                         $"latency measurement failed: {e.Message.ReplaceLineEndings(" ")}", "latency measurement failed", warnings, clock);
                 }
                 cache?.StoreLatency(latencyKey, latency);
@@ -71,24 +84,56 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             // Not run: either already over a budget, or too large for this machine (the one budget the user did not set).
             var why = evaluation.FailureReason ?? "not run on ONNX Runtime (already over budget)";
             (status, reason, kind) = status == CheckStatus.Ok
-                ? (CheckStatus.OverBudget, why, "too large to run here")
+                ? (CheckStatus.OverBudget, why, TooLargeKind)
                 : (status, $"{reason}; {why}", kind);
         }
-        return new CheckRecord(candidate.Id, genotype.Name, hash, status, reason, evaluation.OutputShape, figures,
-            trainMemory, evaluation.OnnxBytes, warnings, latency, clock.Elapsed.TotalMilliseconds, cached, kind);
+        return new CheckRecord
+        {
+            Id = candidate.Id,
+            Name = genotype.Name,
+            Hash = hash,
+            Status = status,
+            Reason = reason,
+            ReasonKind = kind,
+            OutputShape = evaluation.OutputShape,
+            Params = figures.Params,
+            Buffers = figures.Buffers,
+            Macs = figures.Macs,
+            PeakActivationBytes = figures.PeakActivationBytes,
+            Ops = figures.OpCounts,
+            Warnings = warnings,
+            Notes = notes,
+            OnnxBytes = evaluation.OnnxBytes,
+            TrainMemoryBytes = trainMemory,
+            LatencyMs = latency?.AtBatch(1)?.P50Ms,
+            Latency = latency,
+            Cached = cached,
+            CheckMs = Math.Round(clock.Elapsed.TotalMilliseconds, 4),
+            Meta = MetaOf(candidate),
+        };
     }
 
-    private sealed record Prepared(string Hash, IReadOnlyList<string> Warnings, Evaluation Evaluation, bool Cached, byte[]? Model, string? LatencyKey);
+    private sealed record Prepared(string Hash, IReadOnlyList<string> Warnings, IReadOnlyList<string> Notes, Evaluation Evaluation, bool Cached, byte[]? Model, string? LatencyKey);
+
+    /// <summary>The candidate's `meta` object as written (the reader kept it as compact JSON text).</summary>
+    private static JsonElement? MetaOf(Candidate candidate)
+    {
+        if (candidate.Genotype?.Meta is not { } meta) return null;
+        using var document = JsonDocument.Parse(meta);
+        return document.RootElement.Clone();
+    }
 
     /// <summary>
     /// Hash, cache look-up, compile and smoke test; and when latency is to be measured and is not in
     /// the cache, the model bytes for it, compiled here so that no compile overlaps a measurement.
     /// </summary>
-    private Prepared Prepare(Input.Genotype genotype)
+    private Prepared Prepare(Genotype genotype)
     {
         var liveness = Liveness.Analyse(genotype);
         var hash = GenotypeHasher.Hash(genotype, liveness);
         var warnings = Lowerer.Warnings(genotype, liveness);
+        IReadOnlyList<string> notes = liveness.Cell(genotype).OutputIsLive && !Lowerer.HasTrainableOp(genotype, liveness)
+            ? [Lowerer.TrivialCellNote] : [];
         var key = $"{hash}|{_settingsKey}";
 
         byte[]? model = null;
@@ -108,10 +153,13 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         if (evaluation.Works && evaluation.SmokeTested && options.EffectiveLatency is { } settings)
         {
             latencyKey = $"{key}|{LatencyKey(settings)}";
-            if (cache?.FindLatency(latencyKey) is null)
-                model ??= Compiler.Compile(genotype, options.Skeleton, options.Compile, hash).OnnxBytes;
+            if (cache?.FindLatency(latencyKey) is null && model is null)
+            {
+                using var reservation = _memory.Reserve(CompileEstimate(genotype));
+                model = Compiler.Compile(genotype, options.Skeleton, options.Compile, hash).OnnxBytes;
+            }
         }
-        return new Prepared(hash, warnings, evaluation, cached, model, latencyKey);
+        return new Prepared(hash, warnings, notes, evaluation, cached, model, latencyKey);
     }
 
     private long TrainMemory(Evaluation evaluation) =>
@@ -120,31 +168,57 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     private bool OverStaticBudget(Evaluation evaluation) =>
         Judge(evaluation.Figures!, TrainMemory(evaluation), null, options).Item1 != CheckStatus.Ok || TooLargeToRun(evaluation.Figures!) is not null;
 
-    /// <summary>Rough memory to run at batch 2: the model bytes twice (ours and the runtime's) and two samples' activations twice over.</summary>
+    /// <summary>
+    /// Memory to run at batch 2, estimated: the model bytes three times (ours, the runtime's copy and
+    /// its prepared weights; a 2.14 GB model peaked at 6.3 GB), two samples' activations twice over, and
+    /// the runtime's own structures per node.
+    /// </summary>
+    public static long RunEstimate(NetworkFigures figures)
+    {
+        var nodes = figures.OpCounts.Values.Sum(n => (long)n);
+        var needed = (Int128)figures.WeightBytes * 3 + (Int128)figures.PeakActivationBytes * 4 + (Int128)nodes * RuntimeBytesPerNode;
+        return needed > long.MaxValue ? long.MaxValue : (long)needed;
+    }
+
+    /// <summary>Memory a compile holds, estimated before compiling from the expanded network's op count.</summary>
+    private long CompileEstimate(Genotype genotype)
+    {
+        var cells = options.Skeleton.Stages.Sum(s => (long)s.Cells);
+        return Math.Min(ExpansionSize.CellPrimitiveOps(genotype) * cells, Limits.MaxExpandedPrimitiveOps + 1) * CompileBytesPerOp;
+    }
+
+    /// <summary>Why a compiled network is not run here: too many nodes, or more memory than this run may use.</summary>
     private string? TooLargeToRun(NetworkFigures figures)
     {
-        var needed = (Int128)figures.WeightBytes * 2 + (Int128)figures.PeakActivationBytes * 4;
-        var limit = options.EffectiveRunMemoryLimit;
-        return needed > limit
-            ? $"not run on ONNX Runtime: it needs about {(double)needed / 1e9:0.##} GB, more than the {limit / 1e9:0.##} GB allowed here"
+        var nodes = figures.OpCounts.Values.Sum(n => (long)n);
+        if (nodes > options.MaxRunNodes)
+            return $"not run on ONNX Runtime: the network has {nodes:N0} nodes, more than the {options.MaxRunNodes:N0} a check runs (--max-run-nodes)";
+        var needed = RunEstimate(figures);
+        return needed > _memory.CapacityBytes
+            ? $"not run on ONNX Runtime: it needs about {Gigabytes(needed)} GB, more than the {Gigabytes(_memory.CapacityBytes)} GB this run may use (--memory-limit-gb)"
             : null;
     }
 
+    private static string Gigabytes(long bytes) => Significant(bytes / 1e9);
+
     /// <summary>Compile and smoke-test: the cacheable part of a check.</summary>
-    private (Evaluation, byte[]?) Evaluate(Input.Genotype genotype, string hash)
+    private (Evaluation, byte[]?) Evaluate(Genotype genotype, string hash)
     {
         CompiledModel model;
-        try
+        using (var reservation = _memory.Reserve(CompileEstimate(genotype)))
         {
-            model = Compiler.Compile(genotype, options.Skeleton, options.Compile, hash);
-        }
-        catch (DeadCellException dead)
-        {
-            return (new Evaluation(CheckStatus.Broken, dead.Message, "dead cell", null, null, null, null), null);
-        }
-        catch (CompileException e)
-        {
-            return (new Evaluation(CheckStatus.Invalid, e.Message, "invalid: cannot form the network", null, null, null, null), null);
+            try
+            {
+                model = Compiler.Compile(genotype, options.Skeleton, options.Compile, hash);
+            }
+            catch (DeadCellException dead)
+            {
+                return (new Evaluation(CheckStatus.Broken, dead.Message, "dead cell", null, null, null, null), null);
+            }
+            catch (CompileException e)
+            {
+                return (new Evaluation(CheckStatus.Invalid, e.Message, "invalid: cannot form the network", null, null, null, null), null);
+            }
         }
         var activation = TrainingMemory.ActivationBytesPerSample(model.Network);
         var compiled = new Evaluation(null, null, null, model.OutputShape.Dims, model.Figures, activation, model.OnnxBytes.LongLength, SmokeTested: false);
@@ -153,7 +227,9 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             return (compiled, model.OnnxBytes);
         if (TooLargeToRun(model.Figures) is { } tooLarge)
             return (compiled with { FailureReason = tooLarge }, model.OnnxBytes);
-        var verdict = SmokeTest.Run(model.OnnxBytes, model.InputShape.Dims, model.OutputShape.Dims, options.Compile.Seed);
+        SmokeVerdict verdict;
+        using (_memory.Reserve(RunEstimate(model.Figures)))
+            verdict = SmokeTest.Run(model.OnnxBytes, model.InputShape.Dims, model.OutputShape.Dims, options.Compile.Seed);
         var evaluation = compiled with
         {
             Failure = verdict.Works ? null : CheckStatus.Broken,
@@ -167,16 +243,41 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     private static string LatencyKey(LatencySettings s) =>
         $"cpu={MachineInfo.Processor}|ort={MachineInfo.RuntimeVersion}|threads={s.Threads}|batches={string.Join(",", s.BatchSizes)}|warmup={s.Warmup}|runs={s.Runs}|min={s.MinSeconds}";
 
-    private static CheckRecord Failed(string id, string? name, string? hash, CheckStatus status, string reason, string? kind,
-        IReadOnlyList<string> warnings, Stopwatch clock, bool cached = false) =>
-        new(id, name, hash, status, reason, null, null, null, null, warnings, null, clock.Elapsed.TotalMilliseconds, cached, kind);
+    private static CheckRecord Failed(Candidate candidate, string? hash, CheckStatus status, string reason, string? kind,
+        IReadOnlyList<string> warnings, Stopwatch clock, bool cached = false) => new()
+    {
+        Id = candidate.Id,
+        Name = candidate.Genotype?.Name,
+        Hash = hash,
+        Status = status,
+        Reason = reason,
+        ReasonKind = kind,
+        Warnings = warnings,
+        Cached = cached,
+        CheckMs = Math.Round(clock.Elapsed.TotalMilliseconds, 4),
+        Meta = MetaOf(candidate),
+    };
+
+    /// <summary>The record of a candidate whose check failed in a way this tool did not foresee (a bug).</summary>
+    public static CheckRecord InternalError(Candidate candidate, Exception e) => new()
+    {
+        Id = candidate.Id,
+        Name = candidate.Genotype?.Name,
+        Status = CheckStatus.Broken,
+        Reason = $"internal error while checking ({e.GetType().Name}): {e.Message.ReplaceLineEndings(" ")}",
+        ReasonKind = "internal error",
+    };
 
     /// <summary>A problem's general kind, without the names and numbers of this instance (for summaries).</summary>
     private static string Kind(string problem)
     {
-        var cut = problem.IndexOfAny([':', '\'', '"', '(', '[']);
+        // "malformed JSON at line 3, column 7: ..." is one kind whatever the position.
+        var at = problem.IndexOf(" at line ", StringComparison.Ordinal);
+        if (at > 0) problem = problem[..at];
+        var cut = problem.IndexOfAny([':', '\'', '"', '(', '[', ';']);
         var text = cut > 0 ? problem[..cut] : problem;
-        return new string(text.Where(c => !char.IsDigit(c)).ToArray()).Trim();
+        var kind = new string(text.Where(c => !char.IsDigit(c)).ToArray()).Trim();
+        return kind.Length == 0 ? "other" : kind;
     }
 
     /// <summary>Every exceeded budget, named with the option that set it and by how much it is exceeded.</summary>
@@ -185,14 +286,15 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         var budgets = options.Budgets;
         var over = new List<string>();
         var kinds = new List<string>();
-        void Compare(string what, double actual, double? limit, string option, string unit)
+        void Compare(string what, double actual, double? limit, string option, string unit, bool count = false)
         {
             if (limit is not { } max || actual <= max) return;
-            over.Add($"{what} {Format(actual)}{unit} exceeds {option} {Format(max)}{unit} by {Format(100 * (actual - max) / max)}%");
+            var (shownActual, shownMax) = count ? (Count(actual), Count(max)) : (Significant(actual), Significant(max));
+            over.Add($"{what} {shownActual}{unit} exceeds {option} {shownMax}{unit} by {Significant(100 * (actual - max) / max)}%");
             kinds.Add("over " + option);
         }
-        Compare("params", figures.Params, budgets.MaxParams, "--max-params", "");
-        Compare("MACs", figures.Macs, budgets.MaxMacs, "--max-macs", "");
+        Compare("params", figures.Params, budgets.MaxParams, "--max-params", "", count: true);
+        Compare("MACs", figures.Macs, budgets.MaxMacs, "--max-macs", "", count: true);
         Compare("peak activation memory", figures.PeakActivationBytes / 1e6, budgets.MaxActivationMB, "--max-activation-mb", " MB");
         Compare($"training memory estimate at batch {options.TrainBatch}", trainMemoryBytes / 1e9, budgets.MaxTrainMemoryGB, "--max-train-memory-gb", " GB");
         if (latency?.AtBatch(1) is { } atOne)
@@ -202,12 +304,16 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             : (CheckStatus.OverBudget, string.Join("; ", over), string.Join(", ", kinds));
     }
 
-    /// <summary>Readable, and never rounds a small budget down to 0.</summary>
-    private static string Format(double value) => value switch
+    /// <summary>A whole count with thousands separators (a budget of 5M reads "5,000,000").</summary>
+    private static string Count(double value) => Math.Round(value).ToString("N0", CultureInfo.InvariantCulture);
+
+    /// <summary>Three significant digits ("3.45", "36.0", "1,234"), so that figures side by side read alike; never rounds a small value to 0.</summary>
+    public static string Significant(double value)
     {
-        >= 1000 => value.ToString("N0", CultureInfo.InvariantCulture),
-        >= 10 => value.ToString("0.#", CultureInfo.InvariantCulture),
-        >= 1 => value.ToString("0.###", CultureInfo.InvariantCulture),
-        _ => value.ToString("G3", CultureInfo.InvariantCulture),
-    };
+        if (value == 0 || !double.IsFinite(value)) return value.ToString(CultureInfo.InvariantCulture);
+        var magnitude = (int)Math.Floor(Math.Log10(Math.Abs(value)));
+        if (magnitude >= 2) return Math.Round(value).ToString("N0", CultureInfo.InvariantCulture);
+        var decimals = 2 - magnitude;
+        return Math.Round(value, decimals).ToString("F" + decimals, CultureInfo.InvariantCulture);
+    }
 }

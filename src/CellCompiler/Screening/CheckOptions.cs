@@ -4,22 +4,25 @@ using CellCompiler.Runtime;
 
 namespace CellCompiler.Screening;
 
-/// <summary>Everything that decides a candidate's check result. Latency null: not measured.</summary>
+/// <summary>
+/// Everything that decides a candidate's check result. Latency null: not measured.
+/// <see cref="MaxRunNodes"/> bounds the time and memory of a smoke run: ONNX Runtime's session set-up
+/// grows faster than linearly with the node count (a network of 100,000 nodes took minutes and
+/// gigabytes), so a larger network is compiled and counted but not run, and reported as
+/// `over_budget` ("too large to run here").
+/// </summary>
 public sealed record CheckOptions(
     Skeleton Skeleton,
     CompileOptions Compile,
     Budgets Budgets,
     int TrainBatch = CheckOptions.DefaultTrainBatch,
     LatencySettings? Latency = null,
-    long? RunMemoryLimitBytes = null)
+    int MaxRunNodes = CheckOptions.DefaultMaxRunNodes)
 {
-    /// <summary>
-    /// A candidate whose run would need more than this (default: a quarter of the memory available to
-    /// the process) is not run: it is reported as over budget instead of risking the machine.
-    /// </summary>
-    public long EffectiveRunMemoryLimit => RunMemoryLimitBytes ?? GC.GetGCMemoryInfo().TotalAvailableMemoryBytes / 4;
-
     public const int DefaultTrainBatch = 64;
+
+    /// <summary>Default bound on ONNX nodes run per candidate (see the README's reliability section for the measurement).</summary>
+    public const int DefaultMaxRunNodes = 10_000;
 
     /// <summary>Latency is measured when asked for, or when a latency budget needs it.</summary>
     public LatencySettings? EffectiveLatency => Latency ?? (Budgets.NeedsLatency ? LatencySettings.Default : null);

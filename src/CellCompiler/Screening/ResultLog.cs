@@ -1,12 +1,12 @@
-using System.Text;
-using System.Text.Json;
+using CellCompiler.Input;
+using CellCompiler.Io;
 
 namespace CellCompiler.Screening;
 
 /// <summary>
 /// The results file of a screening run: whole lines only, appended and flushed to the operating
 /// system one by one, so a killed process (even kill -9) leaves at most one partial last line,
-/// which resuming cuts off. Data also reaches the disk (fsync) at least every second.
+/// which resuming cuts off. Data also reaches the disk (fsync) at least every second and at the end.
 /// </summary>
 public sealed class ResultLog : IDisposable
 {
@@ -20,7 +20,7 @@ public sealed class ResultLog : IDisposable
         _ownsStream = ownsStream;
     }
 
-    /// <summary>Records go to standard output, each flushed when written.</summary>
+    /// <summary>Records go to a stream (standard output), each flushed when written.</summary>
     public static ResultLog ToStream(Stream stream) => new(stream, ownsStream: false);
 
     /// <summary>Starts a new results file, replacing an old one.</summary>
@@ -28,49 +28,65 @@ public sealed class ResultLog : IDisposable
         new(new FileStream(path, FileMode.Create, FileAccess.Write, FileShare.Read), ownsStream: true);
 
     /// <summary>
-    /// Reopens a results file to continue it: cuts off a partial last line and returns what every
-    /// complete record says (a line counts only with both an id and a status); those candidates
-    /// must not be checked again.
+    /// Reopens a results file to continue it: cuts off a partial last line and hands every complete
+    /// record to <paramref name="previous"/>; their ids are returned, and those candidates must not be
+    /// checked again. A complete line that is not a record is told to <paramref name="warn"/> and kept.
     /// </summary>
-    public static (ResultLog Log, Dictionary<string, PreviousRecord> Done) Resume(string path)
+    public static (ResultLog Log, HashSet<string> Done) Resume(string path, Action<CheckRecord> previous, Action<string> warn)
     {
-        var done = new Dictionary<string, PreviousRecord>(StringComparer.Ordinal);
+        var done = new HashSet<string>(StringComparer.Ordinal);
         if (!File.Exists(path)) return (Create(path), done);
         var stream = new FileStream(path, FileMode.Open, FileAccess.ReadWrite, FileShare.Read);
-        long endOfLastLine = 0, position = 0;
-        var line = new MemoryStream();
-        var buffer = new byte[1 << 16];
-        int read;
-        while ((read = stream.Read(buffer, 0, buffer.Length)) > 0)
+        try
         {
-            for (var i = 0; i < read; i++)
+            long end = 0;
+            using (var lines = new JsonLines(stream, path, CheckRecordJson.MaxLineBytes, ownsStream: false))
             {
-                position++;
-                if (buffer[i] != (byte)'\n')
+                while (lines.TryRead(out var line))
                 {
-                    line.WriteByte(buffer[i]);
-                    continue;
+                    if (!line.Complete) break; // a write cut short: recomputed
+                    end = line.End;
+                    if (line.IsBlank) continue;
+                    var record = line.TooLong ? null : CheckRecordJson.Read(line.Bytes.Span, out _);
+                    if (record is null)
+                    {
+                        warn($"{path}:{line.Number} is not a check record; it is kept as it is and counts for no candidate");
+                        continue;
+                    }
+                    if (done.Add(record.Id)) previous(record);
                 }
-                if (PreviousRecord.Parse(line.GetBuffer().AsSpan(0, (int)line.Length)) is { } record) done[record.Id] = record;
-                line.SetLength(0);
-                endOfLastLine = position;
             }
+            stream.SetLength(end);
+            stream.Seek(end, SeekOrigin.Begin);
+            return (new ResultLog(stream, ownsStream: true), done);
         }
-        stream.SetLength(endOfLastLine);
-        stream.Seek(endOfLastLine, SeekOrigin.Begin);
-        return (new ResultLog(stream, ownsStream: true), done);
+        catch
+        {
+            stream.Dispose();
+            throw;
+        }
+    }
+
+    /// <summary>Whether a results file holds at least one non-blank complete line.</summary>
+    public static bool HoldsRecords(string path)
+    {
+        if (!File.Exists(path)) return false;
+        foreach (var line in JsonLines.ReadFile(path, CheckRecordJson.MaxLineBytes))
+            if (line.Complete && !line.IsBlank) return true;
+        return false;
     }
 
     /// <summary>Writes one record as one whole line in a single write, then flushes it.</summary>
-    public void Append(string jsonLine)
+    public void Append(CheckRecord record)
     {
-        var bytes = Encoding.UTF8.GetBytes(jsonLine + "\n");
+        byte[] bytes = [.. CheckRecordJson.ToUtf8(record), (byte)'\n'];
         _stream.Write(bytes);
         if (_stream is FileStream file)
         {
             var now = Environment.TickCount64;
-            file.Flush(flushToDisk: now - _lastSync >= 1000);
-            if (now - _lastSync >= 1000) _lastSync = now;
+            var sync = now - _lastSync >= 1000;
+            file.Flush(flushToDisk: sync);
+            if (sync) _lastSync = now;
         }
         else
         {
@@ -85,7 +101,7 @@ public sealed class ResultLog : IDisposable
             if (_stream is FileStream file) file.Flush(flushToDisk: true);
             else _stream.Flush();
         }
-        catch (IOException)
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
         {
             // A write already failed (e.g. a full disk) and was reported; do not hide it behind this one.
         }

@@ -66,8 +66,7 @@ public static class ScreeningRun
                 catch (Exception e)
                 {
                     // A bug must not end a run of hours: the candidate is reported, the run goes on.
-                    record = new CheckRecord(candidate.Id, candidate.Genotype?.Name, null, CheckStatus.Broken,
-                        $"internal error while checking ({e.GetType().Name}): {e.Message}", null, null, null, null, [], null, 0, false, "internal error");
+                    record = CandidateChecker.InternalError(candidate, e);
                 }
                 Deliver(sequence, record);
             }

@@ -1,0 +1,91 @@
+using System.Text.Json;
+using System.Text.Json.Nodes;
+using CellCompiler.Input;
+using CellCompiler.Io;
+
+namespace CellCompiler.Screening;
+
+/// <summary>The latency settings of a run, as its settings file records them.</summary>
+public sealed record LatencyFingerprint(int Threads, IReadOnlyList<int> Batches, int Warmup, int Runs, double MinSeconds);
+
+/// <summary>
+/// What a results file was made from: the inputs (paths and content hashes), the skeleton, seed,
+/// opset, budgets, training batch, latency settings, node limit and shard. Kept beside the results
+/// as FILE.settings (JSON, stable snake_case names), so that --resume never mixes records of two
+/// screenings in one file. The memory limit is left out: it follows the machine (a requeued task may
+/// land on another one) and only decides whether a too-large candidate is run.
+/// </summary>
+public sealed record ScreeningSettings
+{
+    public const string FormatTag = "cellc-check-settings/1";
+
+    public string Format { get; init; } = FormatTag;
+    public required IReadOnlyList<InputFingerprint> Inputs { get; init; }
+    public required JsonElement Skeleton { get; init; }
+    public long Seed { get; init; }
+    public int Opset { get; init; }
+    public required Budgets Budgets { get; init; }
+    public int TrainBatch { get; init; }
+    public LatencyFingerprint? Latency { get; init; }
+    public int MaxRunNodes { get; init; }
+    public required string Shard { get; init; }
+
+    public static string PathFor(string resultsPath) => resultsPath + ".settings";
+
+    public static ScreeningSettings Of(IReadOnlyList<InputFingerprint> inputs, CheckOptions options, ShardSelector shard)
+    {
+        var latency = options.EffectiveLatency;
+        using var skeleton = JsonDocument.Parse(options.Skeleton.ToJson());
+        return new ScreeningSettings
+        {
+            Inputs = inputs,
+            Skeleton = skeleton.RootElement.Clone(),
+            Seed = options.Compile.Seed,
+            Opset = options.Compile.Opset,
+            Budgets = options.Budgets,
+            TrainBatch = options.TrainBatch,
+            Latency = latency is null ? null : new LatencyFingerprint(latency.Threads, latency.BatchSizes, latency.Warmup, latency.Runs, latency.MinSeconds),
+            MaxRunNodes = options.MaxRunNodes,
+            Shard = shard.ToString(),
+        };
+    }
+
+    public byte[] ToUtf8() =>
+        JsonSerializer.SerializeToUtf8Bytes(this, new JsonSerializerOptions(ScreeningJson.Readable.Options) { WriteIndented = true }.GetTypeInfo(typeof(ScreeningSettings)));
+
+    public void Write(string resultsPath) => AtomicFile.Write(PathFor(resultsPath), [.. ToUtf8(), (byte)'\n']);
+
+    /// <summary>
+    /// Refuses to continue a results file made by another screening: other inputs or input content,
+    /// or other options. A results file without records may always be continued.
+    /// </summary>
+    public void RequireSameAs(string resultsPath, bool resultsHoldRecords)
+    {
+        if (!resultsHoldRecords) return;
+        var path = PathFor(resultsPath);
+        if (!File.Exists(path))
+            throw new InputException(resultsPath, "",
+                $"has no settings file beside it ({path}), so what made it cannot be checked; start again without --resume");
+        JsonObject? before;
+        try
+        {
+            var bytes = File.ReadAllBytes(path);
+            if (bytes.Length > 16 << 20) throw new JsonException("too large");
+            before = JsonNode.Parse(bytes) as JsonObject;
+        }
+        catch (Exception e) when (e is JsonException or IOException or UnauthorizedAccessException)
+        {
+            throw new InputException(path, "", $"cannot read the settings of the earlier run ({e.Message}); start again without --resume");
+        }
+        var now = JsonNode.Parse(ToUtf8())!.AsObject();
+        var differ = now.Where(field => before is null || !JsonNode.DeepEquals(field.Value, before[field.Key])).Select(field => field.Key).ToList();
+        if (differ.Count == 0) return;
+        var contentOnly = differ is ["inputs"] && before?["inputs"] is JsonArray old
+                          && old.Select(i => i?["path"]?.GetValue<string>()).SequenceEqual(Inputs.Select(i => i.Path));
+        throw new InputException(resultsPath, "", contentOnly
+            ? $"was made from other content: the population changed since the earlier run (see {path}); " +
+              "start again without --resume, or write the new results to another file"
+            : $"was made by a screening with other settings ({string.Join(", ", differ)} differ, see {path}); " +
+              "resume with the same input and options, or start again without --resume");
+    }
+}
