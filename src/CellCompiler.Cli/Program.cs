@@ -8,6 +8,7 @@ var root = new RootCommand(
 root.Subcommands.Add(CompileCommand.Create());
 root.Subcommands.Add(CheckCommand.Create());
 root.Subcommands.Add(BenchCommand.Create());
+root.Subcommands.Add(CalibrateCommand.Create());
 root.Subcommands.Add(MergeCommand.Create());
 root.Subcommands.Add(SampleCommand.Create());
 root.Subcommands.Add(ScaleCommand.Create());

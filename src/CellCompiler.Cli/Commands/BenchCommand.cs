@@ -3,6 +3,7 @@ using CellCompiler.Cli.Options;
 using CellCompiler.Cli.Output;
 using CellCompiler.Compilation;
 using CellCompiler.Input;
+using CellCompiler.Prediction;
 using CellCompiler.Runtime;
 using Microsoft.ML.OnnxRuntime;
 
@@ -19,6 +20,11 @@ public static class BenchCommand
             Description = "Attribute kernel time to the stem, each cell, each reduction and the head (by op type for other models), from ONNX Runtime's profiler.",
         };
         var json = new Option<bool>("--json") { Description = "Print one JSON object instead of the table." };
+        var latencyTable = new Option<string?>("--latency-table")
+        {
+            HelpName = "TABLE",
+            Description = "Also predict the genotype's latency (batch 1) from a table made by cellc calibrate on this machine, and print it next to the measurement with the error.",
+        };
         var latencyOptions = new LatencyOptions();
         var skeleton = new SkeletonOptions();
         var settings = new CompileSettingsOptions();
@@ -30,6 +36,7 @@ public static class BenchCommand
         command.Arguments.Add(target);
         command.Options.Add(breakdown);
         command.Options.Add(json);
+        command.Options.Add(latencyTable);
         latencyOptions.AddTo(command);
         skeleton.AddTo(command);
         settings.AddTo(command);
@@ -38,10 +45,21 @@ public static class BenchCommand
         {
             var path = parse.GetValue(target)!;
             var latency = latencyOptions.Resolve(parse);
-            var (bytes, ours, description) = Load(path, () => skeleton.Resolve(parse), () => settings.Resolve(parse), latency.BatchSizes);
+            var tablePath = parse.GetValue(latencyTable);
+            if (tablePath is not null && Path.GetExtension(path).Equals(".onnx", StringComparison.OrdinalIgnoreCase))
+                throw new InputException(SkeletonOverrides.Origin, "--latency-table",
+                    "needs a genotype file: a prediction is made from the units of a genotype, not from an ONNX model");
+            // The table is read (and refused under other conditions) before anything is measured.
+            var predictor = tablePath is null ? null
+                : LatencyPredictor.Open(tablePath, TableConditions.Here(latency.Threads, settings.Resolve(parse).Opset),
+                    message => Console.Error.WriteLine($"cellc: warning: {TerminalText.Safe(message)}"));
+            var (bytes, ours, description, source) = Load(path, () => skeleton.Resolve(parse), () => settings.Resolve(parse), latency.BatchSizes);
             BenchResult result;
             try
             {
+                // Units the table lacks are measured first, so that the candidate's own measurement is not disturbed afterwards.
+                double? predicted = predictor is null || source is not { } s ? null
+                    : predictor.Predict(s.Genotype, Lowering.Liveness.Analyse(s.Genotype), s.Skeleton);
                 var report = LatencyMeter.Measure(bytes, latency);
                 LatencyBreakdown? parts = null;
                 if (parse.GetValue(breakdown))
@@ -51,7 +69,11 @@ public static class BenchCommand
                         Math.Min(latency.Warmup, 10), Math.Min(latency.Runs, 200));
                     parts = LatencyBreakdown.FromProfile(profile, ours);
                 }
-                result = new BenchResult(path, description, report, parts);
+                result = new BenchResult(path, description, report, parts)
+                {
+                    PredictedMs = predicted,
+                    LatencyTable = tablePath,
+                };
             }
             catch (Exception e) when (e is OnnxRuntimeException or NotSupportedException)
             {
@@ -78,7 +100,8 @@ public static class BenchCommand
         catch (Google.Protobuf.InvalidProtocolBufferException) { return false; }
     }
 
-    private static (byte[] Bytes, bool Ours, string Description) Load(string path, Func<Skeleton> skeleton, Func<CompileOptions> options, IReadOnlyList<int> batches)
+    private static (byte[] Bytes, bool Ours, string Description, (Genotype Genotype, Skeleton Skeleton)? Source) Load(
+        string path, Func<Skeleton> skeleton, Func<CompileOptions> options, IReadOnlyList<int> batches)
     {
         if (!Path.GetExtension(path).Equals(".onnx", StringComparison.OrdinalIgnoreCase))
         {
@@ -90,10 +113,10 @@ public static class BenchCommand
             catch (Graph.CompileException e) { throw new InputException(path, "", e.Message); }
             catch (Lowering.DeadCellException e) { throw e.In(path); }
             RequireRunnable(path, 0, batches, model.Figures);
-            return (model.OnnxBytes, true, $"genotype {genotype.Name} on {CompileReport.DescribeSkeleton(resolved)}");
+            return (model.OnnxBytes, true, $"genotype {genotype.Name} on {CompileReport.DescribeSkeleton(resolved)}", (genotype, resolved));
         }
         var bytes = BoundedFile.ReadAll(path, Input.Limits.MaxModelBytes, "an ONNX model (external data is not supported)");
-        return (bytes, MadeByUs(bytes), "ONNX model");
+        return (bytes, MadeByUs(bytes), "ONNX model", null);
     }
 
     /// <summary>
@@ -117,5 +140,13 @@ public static class BenchCommand
     }
 }
 
-/// <summary>What `bench` measured.</summary>
-public sealed record BenchResult(string Path, string Description, LatencyReport Latency, LatencyBreakdown? Breakdown);
+/// <summary>What `bench` measured, and with --latency-table what the table predicts at batch 1.</summary>
+public sealed record BenchResult(string Path, string Description, LatencyReport Latency, LatencyBreakdown? Breakdown)
+{
+    public double? PredictedMs { get; init; }
+    public string? LatencyTable { get; init; }
+
+    /// <summary>(predicted - measured p50) / measured p50 at batch 1, in percent; null without both.</summary>
+    public double? PredictionErrorPercent =>
+        PredictedMs is { } predicted && Latency.AtBatch(1) is { P50Ms: > 0 } measured ? 100 * (predicted - measured.P50Ms) / measured.P50Ms : null;
+}

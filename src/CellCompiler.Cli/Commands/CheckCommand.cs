@@ -41,6 +41,17 @@ public static class CheckCommand
             Description = "Memory the candidates may use at once, all workers together, in GB (default: half of the memory available); a candidate that needs more alone is not run.",
             CustomParser = HumanNumber.PositiveAmount("GB"),
         };
+        var latencyTable = new Option<string?>("--latency-table")
+        {
+            HelpName = "TABLE",
+            Description = "Predict every compiled candidate's CPU latency (p50 at batch 1) from a table made by cellc calibrate on this machine; " +
+                          "units it lacks are measured on first use and added to it.",
+        };
+        var staticOnly = new Option<bool>("--static")
+        {
+            Description = "Do not run candidates on ONNX Runtime: compile in memory (no weights, no ONNX bytes), figures, budgets and, " +
+                          "with --latency-table, the prediction; ok then means \"compiles and fits\".",
+        };
         var skeleton = new SkeletonOptions();
         var settings = new CompileSettingsOptions();
         var budgets = new BudgetOptions();
@@ -52,7 +63,7 @@ public static class CheckCommand
             "Statuses: ok, over_budget, broken, invalid. Exit 0 if all are ok, 1 otherwise, 2 on a bad command line " +
             "or a bad single genotype file.");
         command.Arguments.Add(inputs);
-        foreach (var option in new Option[] { json, output, jobs, ordered, cachePath, noCache, resume, shard, latency, maxRunNodes, memoryLimit })
+        foreach (var option in new Option[] { json, output, jobs, ordered, cachePath, noCache, resume, shard, latency, latencyTable, staticOnly, maxRunNodes, memoryLimit })
             command.Options.Add(option);
         skeleton.AddTo(command);
         settings.AddTo(command);
@@ -75,7 +86,12 @@ public static class CheckCommand
             {
                 Inputs = parse.GetValue(inputs)!,
                 Options = new CheckOptions(skeleton.Resolve(parse), settings.Resolve(parse), budget,
-                    parse.GetValue(budgets.TrainBatch), latencySettings, parse.GetValue(maxRunNodes)),
+                    parse.GetValue(budgets.TrainBatch), latencySettings, parse.GetValue(maxRunNodes))
+                {
+                    LatencyTablePath = parse.GetValue(latencyTable),
+                    PredictionThreads = requested.Threads,
+                    Static = parse.GetValue(staticOnly),
+                },
                 Jobs = parse.GetValue(jobs),
                 Ordered = parse.GetValue(ordered),
                 Shard = shardText is null ? ShardSelector.All
@@ -88,7 +104,7 @@ public static class CheckCommand
 
             using var stdout = StandardStreams.Output();
             var recordStream = parse.GetValue(json) && request.OutPath is null ? stdout : null;
-            var table = parse.GetValue(json) || request.OutPath is not null ? null : new CheckTable(Console.Out, measure);
+            var table = parse.GetValue(json) || request.OutPath is not null ? null : new CheckTable(Console.Out, measure, request.Options.LatencyTablePath is not null);
             var summaryOut = recordStream is not null ? Console.Error : Console.Out;
             var observer = new Observer(table);
             var outcome = ScreeningSession.Run(request, observer, StandardStreams.Input, recordStream);
@@ -104,7 +120,7 @@ public static class CheckCommand
                 if (outcome.RepeatedIds > 0)
                     summaryOut.WriteLine($"Repeated ids: {Formatting.Plural(outcome.RepeatedIds, "candidate")} used an id seen before (see the warnings).");
                 ScreeningReport.Write(summaryOut, outcome.Summary, outcome.Elapsed);
-                CheckTable.WriteCautions(summaryOut, outcome.AnyLatency);
+                CheckTable.WriteCautions(summaryOut, outcome.AnyLatency, request.Options.LatencyTablePath);
             }
             return outcome.Verdict switch
             {

@@ -34,6 +34,17 @@ public static class BenchReport
                     output.WriteLine($"  {TerminalText.Safe(motif.Part),-24} {motif.Percent,6:0.0}%");
             }
         }
+        if (result.PredictedMs is { } predicted)
+        {
+            output.WriteLine();
+            var measured = l.AtBatch(1);
+            output.WriteLine(measured is null
+                ? $"Predicted from {TerminalText.Safe(result.LatencyTable)}: {Ms(predicted)} ms at batch 1 (batch 1 was not measured)."
+                : $"Predicted from {TerminalText.Safe(result.LatencyTable)}: {Ms(predicted)} ms at batch 1; measured p50 {Ms(measured.P50Ms)} ms; " +
+                  $"error {result.PredictionErrorPercent!.Value.ToString("+0.0;-0.0;0.0", CultureInfo.InvariantCulture)}%.");
+            output.WriteLine("A prediction holds only for the machine, ONNX Runtime version, thread count and session settings its table was " +
+                             "calibrated under; background load during calibration distorts it.");
+        }
         var noisy = l.Batches.Where(b => b.Noisy).ToList();
         if (noisy.Count > 0)
         {
@@ -56,6 +67,12 @@ public static class BenchReport
             writer.WriteString("description", result.Description);
             writer.WritePropertyName("latency");
             System.Text.Json.JsonSerializer.Serialize(writer, result.Latency.Rounded(), ScreeningJson.Readable.LatencyReport);
+            if (result.PredictedMs is { } predicted)
+            {
+                writer.WriteString("latency_table", result.LatencyTable);
+                writer.WriteNumber("latency_predicted_ms", predicted);
+                if (result.PredictionErrorPercent is { } error) writer.WriteNumber("prediction_error_percent", Math.Round(error, 2));
+            }
             writer.WriteStartArray("noisy_batches");
             foreach (var b in result.Latency.Batches.Where(b => b.Noisy)) writer.WriteNumberValue(b.Batch);
             writer.WriteEndArray();

@@ -4,17 +4,18 @@ using CellCompiler.Screening;
 namespace CellCompiler.Cli.Output;
 
 /// <summary>The human view of `check`: one row per candidate as it finishes; file-borne text is made safe to print.</summary>
-public sealed class CheckTable(TextWriter output, bool withLatency)
+public sealed class CheckTable(TextWriter output, bool withLatency, bool withPrediction = false)
 {
     public void WriteHeader()
     {
-        var latency = withLatency ? $" {"p50 ms",9}" : "";
+        var latency = (withLatency ? $" {"p50 ms",9}" : "") + (withPrediction ? $" {"pred. ms",9}" : "");
         output.WriteLine($"{"id",-20} {"status",-11} {"params",10} {"MACs",10} {"act. MB",8} {"train GB",9}{latency}  reason");
     }
 
     public void WriteRow(CheckRecord r)
     {
-        var latency = withLatency ? $" {(r.LatencyMs is { } ms ? Formatting.Significant(ms) : "-"),9}" : "";
+        var latency = (withLatency ? $" {(r.LatencyMs is { } ms ? Formatting.Significant(ms) : "-"),9}" : "")
+                      + (withPrediction ? $" {(r.LatencyPredictedMs is { } predicted ? Formatting.Significant(predicted) : "-"),9}" : "");
         output.WriteLine(
             $"{Fit(TerminalText.Safe(r.Id), 20),-20} {r.Status.Name(),-11} {(r.Params is { } p ? Formatting.Scaled(p) : "-"),10} " +
             $"{(r.Macs is { } m ? Formatting.Scaled(m) : "-"),10} {(r.PeakActivationBytes is { } a ? Formatting.Significant(a / 1e6) : "-"),8} " +
@@ -22,11 +23,14 @@ public sealed class CheckTable(TextWriter output, bool withLatency)
     }
 
     /// <summary>The cautions that go with the figures.</summary>
-    public static void WriteCautions(TextWriter output, LatencyReport? anyLatency)
+    public static void WriteCautions(TextWriter output, LatencyReport? anyLatency, string? latencyTable = null)
     {
         output.WriteLine("Memory figures are estimates (float32; training: activations kept at --train-batch plus 4 copies of every parameter).");
         if (anyLatency is { } l)
             output.WriteLine($"Latency: CPU, {TerminalText.Safe(l.Processor)}, ONNX Runtime {l.RuntimeVersion}, {Formatting.Plural(l.Threads, "thread")}. It does not transfer to other hardware.");
+        if (latencyTable is not null)
+            output.WriteLine($"Predicted latency (from {TerminalText.Safe(latencyTable)}) holds only for the machine, ONNX Runtime version, thread count and " +
+                             "session settings the table was calibrated under, and background load during calibration distorts it.");
     }
 
     private static string Fit(string text, int width) => text.Length <= width ? text : text[..(width - 1)] + "~";

@@ -19,6 +19,25 @@ public static class Compiler
     /// <param name="hash">The genotype's hash when the caller has it already (hashing can be the costly part for symmetric motifs).</param>
     public static CompiledModel Compile(Genotype genotype, Skeleton skeleton, CompileOptions? options = null, string? hash = null)
     {
+        var compiled = CompileFigures(genotype, skeleton, options, hash);
+        options = compiled.Options;
+        var metadata = new List<KeyValuePair<string, string>>
+        {
+            new("genotype_name", genotype.Name),
+            new("genotype_hash", compiled.Hash),
+            new("skeleton", skeleton.ToJson()),
+            new("seed", options.Seed.ToString(System.Globalization.CultureInfo.InvariantCulture)),
+        };
+        var bytes = OnnxEmitter.Emit(compiled.Network, new EmitOptions(options.Seed, options.Opset, genotype.Name, metadata));
+        return new CompiledModel(genotype.Name, compiled.Hash, skeleton, options, compiled.Network, compiled.Figures, compiled.Warnings, bytes);
+    }
+
+    /// <summary>
+    /// Everything but the ONNX model: lower, infer shapes, count figures. No weight is drawn and
+    /// nothing is serialized, which is most of a compile's time (`check --static`).
+    /// </summary>
+    public static CompiledFigures CompileFigures(Genotype genotype, Skeleton skeleton, CompileOptions? options = null, string? hash = null)
+    {
         options ??= CompileOptions.Default;
         if (options.Opset is < OnnxVersions.MinOpset or > OnnxVersions.MaxOpset)
             throw new ArgumentOutOfRangeException(nameof(options), $"opset must be {OnnxVersions.MinOpset} to {OnnxVersions.MaxOpset}");
@@ -38,15 +57,12 @@ public static class Compiler
         if (figures.WeightBytes >= Limits.MaxModelBytes)
             throw new CompileException(
                 $"the model's weights take {figures.WeightBytes:N0} bytes; an ONNX file holds at most 2 GiB. Use fewer or narrower cells.");
-
-        var metadata = new List<KeyValuePair<string, string>>
-        {
-            new("genotype_name", genotype.Name),
-            new("genotype_hash", hash),
-            new("skeleton", skeleton.ToJson()),
-            new("seed", options.Seed.ToString(System.Globalization.CultureInfo.InvariantCulture)),
-        };
-        var bytes = OnnxEmitter.Emit(shaped, new EmitOptions(options.Seed, options.Opset, genotype.Name, metadata));
-        return new CompiledModel(genotype.Name, hash, skeleton, options, shaped, figures, network.Warnings, bytes);
+        return new CompiledFigures(genotype.Name, hash, options, shaped, figures, network.Warnings);
     }
+}
+
+/// <summary>A compile without its ONNX bytes: the shaped network and its figures.</summary>
+public sealed record CompiledFigures(string Name, string Hash, CompileOptions Options, ShapedNetwork Network, NetworkFigures Figures, IReadOnlyList<string> Warnings)
+{
+    public TensorShape OutputShape => Network.OutputShape;
 }

@@ -32,13 +32,29 @@ public static class LatencyMeter
         return options;
     }
 
+    /// <summary>
+    /// The settings of <see cref="SessionOptionsFor"/> in words, recorded with latency tables: a table
+    /// made under other session settings is refused, so change this text whenever they change.
+    /// </summary>
+    public static string DescribeSession(int threads) =>
+        $"graph optimizations all; sequential execution; 1 inter-op thread; {threads} intra-op; spinning {(threads > 1 ? "on" : "off")}; bound inputs and outputs";
+
     public static LatencyReport Measure(byte[] model, LatencySettings settings)
     {
-        using var options = SessionOptionsFor(settings.Threads);
-        using var session = new InferenceSession(model, options);
+        using var session = OpenSession(model, settings.Threads);
         var stats = settings.BatchSizes.Select(batch => MeasureBatch(session, batch, settings)).ToList();
         return new LatencyReport(stats, settings.Threads, MachineInfo.RuntimeVersion, MachineInfo.Processor);
     }
+
+    /// <summary>A session with the measurement settings, for callers that time one model several times (calibration).</summary>
+    public static InferenceSession OpenSession(byte[] model, int threads)
+    {
+        using var options = SessionOptionsFor(threads);
+        return new InferenceSession(model, options);
+    }
+
+    /// <summary>One timing of an open session at a batch size: warm-up runs, then the timed runs of <paramref name="settings"/>.</summary>
+    public static LatencyStats MeasureSession(InferenceSession session, int batch, LatencySettings settings) => MeasureBatch(session, batch, settings);
 
     /// <summary>Runs the session <paramref name="runs"/> times at a batch size with bound inputs and outputs; used by profiling too.</summary>
     public static void RunBound(InferenceSession session, int batch, int runs) =>

@@ -7,6 +7,7 @@ using CellCompiler.Graph;
 using CellCompiler.Hashing;
 using CellCompiler.Input;
 using CellCompiler.Lowering;
+using CellCompiler.Prediction;
 using CellCompiler.Runtime;
 using CellCompiler.Shapes;
 
@@ -18,9 +19,13 @@ namespace CellCompiler.Screening;
 /// an equivalent genotype (equal hash) checked before under the same settings is answered from it.
 /// Time and memory are bounded: a network of more than <see cref="CheckOptions.MaxRunNodes"/> nodes
 /// or whose run would not fit in the <see cref="MemoryGuard"/> is compiled but not run.
+/// With a latency table every candidate that compiled gets a predicted latency (units the table
+/// lacks are measured first, with the machine to themselves); in static mode nothing is run on ONNX
+/// Runtime and the compile draws no weights.
 /// Thread-safe: one checker serves all workers of a run.
 /// </summary>
-public sealed class CandidateChecker(CheckOptions options, IResultCache? cache = null, ExclusiveGate? gate = null, MemoryGuard? memory = null)
+public sealed class CandidateChecker(CheckOptions options, IResultCache? cache = null, ExclusiveGate? gate = null, MemoryGuard? memory = null,
+    LatencyPredictor? predictor = null)
 {
     /// <summary>Kind of the reasons of candidates not run because of this machine's limits.</summary>
     public const string TooLargeKind = "too large to run here";
@@ -33,6 +38,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
 
     private readonly ExclusiveGate _gate = gate ?? ExclusiveGate.None;
     private readonly MemoryGuard _memory = memory ?? MemoryGuard.Unbounded;
+    private readonly LatencyPredictor? _predictor = predictor ?? OpenPredictor(options);
     private readonly string _settingsKey =
         $"{options.Skeleton.ToJson()}|seed={options.Compile.Seed}|opset={options.Compile.Opset}|tool={ToolBuild}";
 
@@ -40,6 +46,12 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     public static readonly string ToolBuild = typeof(CandidateChecker).Assembly.ManifestModule.ModuleVersionId.ToString("N");
 
     public CheckOptions Options => options;
+
+    /// <summary>The predictor of <see cref="CheckOptions.LatencyTablePath"/>, refused unless made under this run's conditions.</summary>
+    public static LatencyPredictor? OpenPredictor(CheckOptions options, Action<string>? warning = null) =>
+        options.LatencyTablePath is { } path
+            ? LatencyPredictor.Open(path, TableConditions.Here(options.PredictionThreads, options.Compile.Opset), warning)
+            : null;
 
     /// <summary>Checks one candidate without a cache or a gate.</summary>
     public static CheckRecord Check(Candidate candidate, CheckOptions options) => new CandidateChecker(options).Check(candidate);
@@ -51,9 +63,27 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             return Failed(candidate, null, CheckStatus.Invalid, candidate.Error!.OneLine, "invalid: " + Kind(candidate.Error.Problem), [], clock);
 
         // Everything but the latency measurement is shared work; the measurement waits until none runs.
-        var (hash, warnings, notes, evaluation, cached, model, latencyKey) = _gate.Shared(() => Prepare(genotype));
+        var (hash, warnings, notes, evaluation, cached, model, latencyKey, units) = _gate.Shared(() => Prepare(genotype));
         if (!evaluation.Works)
             return Failed(candidate, hash, evaluation.Failure!.Value, evaluation.FailureReason!, evaluation.FailureKind, warnings, clock, cached) with { Notes = notes };
+
+        double? predicted = null;
+        if (units is not null)
+        {
+            try
+            {
+                var missing = _predictor!.Missing(units);
+                // Units measured on first use get the machine to themselves, as a latency measurement does.
+                if (missing.Count > 0) _gate.Exclusive(() => { _predictor.MeasureMissing(missing, options.Skeleton); return 0; });
+                predicted = _predictor.Sum(units);
+            }
+            catch (Exception e) when (e is not OutOfMemoryException)
+            {
+                return Failed(candidate, hash, CheckStatus.Broken,
+                    $"latency prediction failed while measuring units missing from the table: {e.Message.ReplaceLineEndings(" ")}",
+                    "latency prediction failed", warnings, clock);
+            }
+        }
 
         var figures = evaluation.Figures!;
         var trainMemory = TrainMemory(evaluation);
@@ -78,8 +108,8 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             }
         }
 
-        var (status, reason, kind) = Judge(figures, trainMemory, latency, options);
-        if (!evaluation.SmokeTested)
+        var (status, reason, kind) = Judge(figures, trainMemory, latency, options, predicted);
+        if (!evaluation.SmokeTested && !options.Static)
         {
             // Not run: either already over a budget, or too large for this machine (the one budget the user did not set).
             var why = evaluation.FailureReason ?? "not run on ONNX Runtime (already over budget)";
@@ -107,13 +137,15 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             TrainMemoryBytes = trainMemory,
             LatencyMs = latency?.AtBatch(1)?.P50Ms,
             Latency = latency,
+            LatencyPredictedMs = predicted,
             Cached = cached,
             CheckMs = Math.Round(clock.Elapsed.TotalMilliseconds, 4),
             Meta = MetaOf(candidate),
         };
     }
 
-    private sealed record Prepared(string Hash, IReadOnlyList<string> Warnings, IReadOnlyList<string> Notes, Evaluation Evaluation, bool Cached, byte[]? Model, string? LatencyKey);
+    private sealed record Prepared(string Hash, IReadOnlyList<string> Warnings, IReadOnlyList<string> Notes, Evaluation Evaluation, bool Cached, byte[]? Model, string? LatencyKey,
+        UnitCounts? Units);
 
     /// <summary>The candidate's `meta` object as written (the reader kept it as compact JSON text).</summary>
     private static JsonElement? MetaOf(Candidate candidate)
@@ -140,6 +172,12 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         var evaluation = cache?.FindEvaluation(key);
         if (evaluation?.Figures is null) evaluation = null; // entries of older builds without figures are not trusted
         var cached = evaluation is not null;
+        if (options.Static)
+        {
+            // Static checks only read the cache: a static evaluation is cheaper to make again than to store.
+            evaluation ??= EvaluateStatic(genotype, hash);
+            return new Prepared(hash, warnings, notes, evaluation, cached, null, null, CountUnits(genotype, liveness, evaluation));
+        }
         if (evaluation is null || (!evaluation.SmokeTested && !OverStaticBudget(evaluation)))
         {
             cached = false;
@@ -159,14 +197,20 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
                 model = Compiler.Compile(genotype, options.Skeleton, options.Compile, hash).OnnxBytes;
             }
         }
-        return new Prepared(hash, warnings, notes, evaluation, cached, model, latencyKey);
+        return new Prepared(hash, warnings, notes, evaluation, cached, model, latencyKey, CountUnits(genotype, liveness, evaluation));
     }
+
+    /// <summary>The units of a candidate that compiled and works, when a prediction is asked for.</summary>
+    private UnitCounts? CountUnits(Genotype genotype, Liveness liveness, Evaluation evaluation) =>
+        _predictor is not null && evaluation.Works && evaluation.Figures is not null
+            ? _predictor.Count(genotype, liveness, options.Skeleton)
+            : null;
 
     private long TrainMemory(Evaluation evaluation) =>
         TrainingMemory.EstimateBytes(evaluation.ActivationBytesPerSample!.Value, evaluation.Figures!.Params, evaluation.Figures.Buffers, options.TrainBatch);
 
     private bool OverStaticBudget(Evaluation evaluation) =>
-        Judge(evaluation.Figures!, TrainMemory(evaluation), null, options).Item1 != CheckStatus.Ok || TooLargeToRun(evaluation.Figures!) is not null;
+        Judge(evaluation.Figures!, TrainMemory(evaluation), null, options, null).Item1 != CheckStatus.Ok || TooLargeToRun(evaluation.Figures!) is not null;
 
     /// <summary>
     /// Memory to run at batch 2, estimated: the model bytes three times (ours, the runtime's copy and
@@ -201,29 +245,46 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
 
     private static string Gigabytes(long bytes) => Significant(bytes / 1e9);
 
+    /// <summary>
+    /// Compiles under the memory guard; a network that cannot be formed is the evaluation that says so
+    /// (<paramref name="failed"/>), anything else is what <paramref name="compile"/> returns.
+    /// </summary>
+    private T CompileGuarded<T>(Genotype genotype, Func<T> compile, Func<Evaluation, T> failed)
+    {
+        using var reservation = _memory.Reserve(CompileEstimate(genotype));
+        try
+        {
+            return compile();
+        }
+        catch (DeadCellException dead)
+        {
+            return failed(new Evaluation(CheckStatus.Broken, dead.Message, "dead cell", null, null, null, null));
+        }
+        catch (CompileException e)
+        {
+            return failed(new Evaluation(CheckStatus.Invalid, e.Message, "invalid: cannot form the network", null, null, null, null));
+        }
+    }
+
+    /// <summary>Compile without weights or ONNX bytes, and count: all a static check needs.</summary>
+    private Evaluation EvaluateStatic(Genotype genotype, string hash) =>
+        CompileGuarded(genotype, () =>
+        {
+            var model = Compiler.CompileFigures(genotype, options.Skeleton, options.Compile, hash);
+            var activation = TrainingMemory.ActivationBytesPerSample(model.Network);
+            return new Evaluation(null, null, null, model.OutputShape.Dims, model.Figures, activation, null, SmokeTested: false);
+        }, failed => failed);
+
     /// <summary>Compile and smoke-test: the cacheable part of a check.</summary>
     private (Evaluation, byte[]?) Evaluate(Genotype genotype, string hash)
     {
-        CompiledModel model;
-        using (var reservation = _memory.Reserve(CompileEstimate(genotype)))
-        {
-            try
-            {
-                model = Compiler.Compile(genotype, options.Skeleton, options.Compile, hash);
-            }
-            catch (DeadCellException dead)
-            {
-                return (new Evaluation(CheckStatus.Broken, dead.Message, "dead cell", null, null, null, null), null);
-            }
-            catch (CompileException e)
-            {
-                return (new Evaluation(CheckStatus.Invalid, e.Message, "invalid: cannot form the network", null, null, null, null), null);
-            }
-        }
-        var activation = TrainingMemory.ActivationBytesPerSample(model.Network);
+        var (model, failure) = CompileGuarded<(CompiledModel?, Evaluation?)>(genotype,
+            () => (Compiler.Compile(genotype, options.Skeleton, options.Compile, hash), null), failed => (null, failed));
+        if (failure is not null) return (failure, null);
+        var activation = TrainingMemory.ActivationBytesPerSample(model!.Network);
         var compiled = new Evaluation(null, null, null, model.OutputShape.Dims, model.Figures, activation, model.OnnxBytes.LongLength, SmokeTested: false);
         // Budgets that need no run are judged first: a candidate already over one is not run at all.
-        if (Judge(model.Figures, TrainMemory(compiled), null, options).Item1 != CheckStatus.Ok)
+        if (Judge(model.Figures, TrainMemory(compiled), null, options, null).Item1 != CheckStatus.Ok)
             return (compiled, model.OnnxBytes);
         if (TooLargeToRun(model.Figures) is { } tooLarge)
             return (compiled with { FailureReason = tooLarge }, model.OnnxBytes);
@@ -281,7 +342,8 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     }
 
     /// <summary>Every exceeded budget, named with the option that set it and by how much it is exceeded.</summary>
-    public static (CheckStatus, string?, string?) Judge(NetworkFigures figures, long trainMemoryBytes, LatencyReport? latency, CheckOptions options)
+    public static (CheckStatus, string?, string?) Judge(NetworkFigures figures, long trainMemoryBytes, LatencyReport? latency, CheckOptions options,
+        double? predictedMs)
     {
         var budgets = options.Budgets;
         var over = new List<string>();
@@ -299,6 +361,8 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         Compare($"training memory estimate at batch {options.TrainBatch}", trainMemoryBytes / 1e9, budgets.MaxTrainMemoryGB, "--max-train-memory-gb", " GB");
         if (latency?.AtBatch(1) is { } atOne)
             Compare("latency p50 at batch 1", atOne.P50Ms, budgets.MaxLatencyMs, "--max-latency-ms", " ms");
+        if (predictedMs is { } predicted)
+            Compare("predicted latency at batch 1", predicted, budgets.MaxPredictedLatencyMs, "--max-predicted-latency-ms", " ms");
         return over.Count == 0
             ? (CheckStatus.Ok, null, null)
             : (CheckStatus.OverBudget, string.Join("; ", over), string.Join(", ", kinds));

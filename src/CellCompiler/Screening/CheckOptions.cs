@@ -9,7 +9,9 @@ namespace CellCompiler.Screening;
 /// <see cref="MaxRunNodes"/> bounds the time and memory of a smoke run: ONNX Runtime's session set-up
 /// grows faster than linearly with the node count (a network of 100,000 nodes took minutes and
 /// gigabytes), so a larger network is compiled and counted but not run, and reported as
-/// `over_budget` ("too large to run here").
+/// `over_budget` ("too large to run here"). With <see cref="LatencyTablePath"/> every compiled
+/// candidate gets a predicted latency; <see cref="Static"/> checks without ONNX Runtime: compile in
+/// memory (no weights, no ONNX bytes), figures, budgets and the prediction.
 /// </summary>
 public sealed record CheckOptions(
     Skeleton Skeleton,
@@ -26,4 +28,13 @@ public sealed record CheckOptions(
 
     /// <summary>Latency is measured when asked for, or when a latency budget needs it.</summary>
     public LatencySettings? EffectiveLatency => Latency ?? (Budgets.NeedsLatency ? LatencySettings.Default : null);
+
+    /// <summary>The latency table to predict from (`--latency-table`); null: no prediction.</summary>
+    public string? LatencyTablePath { get; init; }
+
+    /// <summary>Intra-op threads the prediction is for; the table must have been calibrated with as many.</summary>
+    public int PredictionThreads { get; init; } = 1;
+
+    /// <summary>No ONNX Runtime session for the candidates: `ok` means "compiles and fits".</summary>
+    public bool Static { get; init; }
 }

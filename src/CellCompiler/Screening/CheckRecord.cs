@@ -43,6 +43,10 @@ public sealed record CheckRecord
     [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
     public LatencyReport? Latency { get; init; }
 
+    /// <summary>Latency p50 at batch 1 in ms predicted from a latency table (`--latency-table`), for every candidate that compiled.</summary>
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public double? LatencyPredictedMs { get; init; }
+
     public bool Cached { get; init; }
 
     /// <summary>Time spent on the candidate, ms.</summary>

@@ -58,6 +58,9 @@ public static class ScreeningSession
         var clock = Stopwatch.StartNew();
         if (request.Jobs is < 1 or > 256) throw Bad("--jobs", $"must be between 1 and 256, found {request.Jobs}");
         if (request.Resume && request.OutPath is null) throw Bad("--resume", "needs --out FILE: the records of the interrupted run");
+        RequirePredictionOptions(request.Options);
+        // The table is read (and refused under other conditions) before any file is touched.
+        var predictor = CandidateChecker.OpenPredictor(request.Options, observer.Warning);
 
         var source = CandidateSource.Open(request.Inputs, stdin);
         if (request.OutPath is { } outPath) RequireOutsideInputs(outPath, request.Inputs, source);
@@ -109,7 +112,7 @@ public static class ScreeningSession
             var badSingle = false;
             LatencyReport? anyLatency = null;
             using var gate = new ExclusiveGate();
-            var checker = new CandidateChecker(request.Options, cache, gate, new MemoryGuard(request.MemoryLimitBytes));
+            var checker = new CandidateChecker(request.Options, cache, gate, new MemoryGuard(request.MemoryLimitBytes), predictor);
             ScreeningRun.Execute(source.Read(observer.Warning),
                 candidate => request.Shard.Contains(candidate.Id) && !done.Contains(candidate.Id),
                 checker.Check,
@@ -130,6 +133,16 @@ public static class ScreeningSession
         {
             log?.Dispose();
         }
+    }
+
+    /// <summary>Static checks run nothing, so they cannot measure; a budget on the prediction needs a table to predict from.</summary>
+    private static void RequirePredictionOptions(CheckOptions options)
+    {
+        if (options.Static && options.EffectiveLatency is not null)
+            throw Bad(options.Budgets.NeedsLatency ? "--max-latency-ms" : "--latency",
+                "needs a measurement on ONNX Runtime, which --static does not make; use --latency-table TABLE with --max-predicted-latency-ms");
+        if (options.Budgets.MaxPredictedLatencyMs is not null && options.LatencyTablePath is null)
+            throw Bad("--max-predicted-latency-ms", "needs --latency-table TABLE to predict from (make one with cellc calibrate)");
     }
 
     /// <summary>The results may not overwrite an input, nor land in an input folder (where they would be read as genotypes).</summary>

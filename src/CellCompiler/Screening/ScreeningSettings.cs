@@ -30,6 +30,14 @@ public sealed record ScreeningSettings
     public int MaxRunNodes { get; init; }
     public required string Shard { get; init; }
 
+    /// <summary>`--static`; written only when set, so that settings files of runs without it compare as before.</summary>
+    [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingDefault)]
+    public bool Static { get; init; }
+
+    /// <summary>The latency table predictions came from (its full path), and the threads they are for; written only when predicting.</summary>
+    [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingNull)]
+    public string? LatencyTable { get; init; }
+
     public static string PathFor(string resultsPath) => resultsPath + ".settings";
 
     public static ScreeningSettings Of(IReadOnlyList<InputFingerprint> inputs, CheckOptions options, ShardSelector shard)
@@ -47,6 +55,10 @@ public sealed record ScreeningSettings
             Latency = latency is null ? null : new LatencyFingerprint(latency.Threads, latency.BatchSizes, latency.Warmup, latency.Runs, latency.MinSeconds),
             MaxRunNodes = options.MaxRunNodes,
             Shard = shard.ToString(),
+            Static = options.Static,
+            LatencyTable = options.LatencyTablePath is { } table
+                ? $"{Path.GetFullPath(table)} ({options.PredictionThreads} thread{(options.PredictionThreads == 1 ? "" : "s")})"
+                : null,
         };
     }
 
@@ -78,7 +90,9 @@ public sealed record ScreeningSettings
             throw new InputException(path, "", $"cannot read the settings of the earlier run ({e.Message}); start again without --resume");
         }
         var now = JsonNode.Parse(ToUtf8())!.AsObject();
-        var differ = now.Where(field => before is null || !JsonNode.DeepEquals(field.Value, before[field.Key])).Select(field => field.Key).ToList();
+        // Fields of either side: a field written only when set (static, latency_table) differs when one run set it and the other did not.
+        var fields = now.Select(f => f.Key).Union(before?.Select(f => f.Key) ?? []).ToList();
+        var differ = fields.Where(field => before is null || !JsonNode.DeepEquals(now[field], before[field])).ToList();
         if (differ.Count == 0) return;
         var contentOnly = differ is ["inputs"] && before?["inputs"] is JsonArray old
                           && old.Select(i => i?["path"]?.GetValue<string>()).SequenceEqual(Inputs.Select(i => i.Path));

@@ -1,0 +1,81 @@
+using System.CommandLine;
+using System.Globalization;
+using CellCompiler.Cli.Options;
+using CellCompiler.Cli.Output;
+using CellCompiler.Input;
+using CellCompiler.Prediction;
+using CellCompiler.Vocabulary;
+
+namespace CellCompiler.Cli.Commands;
+
+/// <summary>`cellc calibrate`: measures every unit a network of the skeleton can contain into a latency table.</summary>
+public static class CalibrateCommand
+{
+    public static Command Create()
+    {
+        var output = new Option<string>("--output", "-o")
+        {
+            HelpName = "TABLE",
+            Description = "The latency table to write (JSON). An existing table made on this machine under the same conditions keeps " +
+                          "its other units; the units measured now replace theirs.",
+            Required = true,
+        };
+        var primitives = new Option<string?>("--primitives")
+        {
+            HelpName = "FILE",
+            Description = "Also calibrate the primitives declared in FILE (a JSON object of declarations, as a genotype's `primitives` field).",
+        };
+        var maxFanIn = new Option<int>("--max-fan-in")
+        {
+            HelpName = "K",
+            Description = $"Calibrate merges of 2 to K inputs (default {CalibrationRequest.DefaultMaxFanIn}); a node with more is measured when first met.",
+            DefaultValueFactory = _ => CalibrationRequest.DefaultMaxFanIn,
+            CustomParser = r => HumanNumber.WholeNumber(2, Limits.MaxNodes - 1)(r),
+        };
+        var threads = new Option<int>("--threads")
+        {
+            HelpName = "N",
+            Description = "ONNX Runtime intra-op threads to calibrate for (predictions are refused for other thread counts).",
+            DefaultValueFactory = _ => 1,
+            CustomParser = r => HumanNumber.WholeNumber(1, 256)(r),
+        };
+        var skeleton = new SkeletonOptions();
+        var settings = new CompileSettingsOptions();
+
+        var command = new Command("calibrate",
+            "Measure, with ONNX Runtime on this CPU and the session settings of `bench`, every unit a network of the skeleton can contain " +
+            "(each primitive at each stage's size, merges by fan-in, the stem, reductions, head and the per-run cost) into a latency table " +
+            "for `check --latency-table` and `bench --latency-table`. Run it on a quiet machine: background load distorts it.");
+        foreach (var option in new Option[] { output, primitives, maxFanIn, threads })
+            command.Options.Add(option);
+        skeleton.AddTo(command);
+        settings.AddTo(command);
+
+        command.SetAction(parse =>
+        {
+            var path = parse.GetValue(output)!;
+            var table = parse.GetValue(primitives) is { } file ? PrimitiveDeclarations.ReadFile(file) : PrimitiveTable.BuiltinsOnly;
+            var request = new CalibrationRequest(skeleton.Resolve(parse), table, parse.GetValue(maxFanIn), parse.GetValue(threads), settings.Resolve(parse).Opset);
+            var startLoad = SystemLoad.OneMinute();
+            Console.Error.WriteLine($"cellc calibrate: {Formatting.Plural(Calibration.Plan(request).Count, "unit")} of {CompileReport.DescribeSkeleton(request.Skeleton)}, " +
+                                    $"{Formatting.Plural(request.Threads, "thread")}, opset {request.Opset}{LoadNote(startLoad)}");
+            if (startLoad is { } load && load > Environment.ProcessorCount)
+                Console.Error.WriteLine($"cellc calibrate: warning: the load average ({Number(load)}) exceeds the {Environment.ProcessorCount} cores: " +
+                                        "other work will distort the table; calibrate when the machine is quiet");
+            var result = Calibration.Run(path, request, step => Console.Error.WriteLine(
+                $"cellc calibrate: [{step.Done}/{step.Total}] {TerminalText.Safe(step.Unit)}: {step.Ms.ToString("0.0000", CultureInfo.InvariantCulture)} ms" +
+                $"  ({Formatting.Duration(step.Elapsed)} elapsed, about {Formatting.Duration(step.Remaining)} left{LoadNote(step.Load, ", load ")})"));
+            var c = result.Conditions;
+            Console.Out.WriteLine($"Wrote {TerminalText.Safe(path)}: {Formatting.Plural(result.Count, "unit")} in all, for {TerminalText.Safe(c.Processor)}, " +
+                                  $"ONNX Runtime {c.OnnxRuntime}, {Formatting.Plural(c.Threads, "thread")}, opset {c.Opset}.");
+            Console.Out.WriteLine("Predictions from this table hold only on this machine model, with this ONNX Runtime version, thread count and " +
+                                  "session settings; background load during calibration distorts them (the table records the load average of each unit).");
+            return ExitCodes.Ok;
+        });
+        return command;
+    }
+
+    private static string LoadNote(double? load, string prefix = "; load average ") => load is { } l ? prefix + Number(l) : "";
+
+    private static string Number(double value) => value.ToString("0.00", CultureInfo.InvariantCulture);
+}
