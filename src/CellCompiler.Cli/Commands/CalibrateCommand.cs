@@ -49,13 +49,14 @@ public static class CalibrateCommand
         foreach (var option in new Option[] { output, primitives, maxFanIn, threads })
             command.Options.Add(option);
         skeleton.AddTo(command);
-        settings.AddTo(command);
+        // The opset decides some ops (HardSwish before 14); the seed only weight values, which do not change latency.
+        command.Options.Add(settings.Opset);
 
         command.SetAction(parse =>
         {
             var path = parse.GetValue(output)!;
             var table = parse.GetValue(primitives) is { } file ? PrimitiveDeclarations.ReadFile(file) : PrimitiveTable.BuiltinsOnly;
-            var request = new CalibrationRequest(skeleton.Resolve(parse), table, parse.GetValue(maxFanIn), parse.GetValue(threads), settings.Resolve(parse).Opset);
+            var request = new CalibrationRequest(skeleton.Resolve(parse), table, parse.GetValue(maxFanIn), parse.GetValue(threads), parse.GetValue(settings.Opset));
             var startLoad = SystemLoad.OneMinute();
             Console.Error.WriteLine($"cellc calibrate: {Formatting.Plural(Calibration.Plan(request).Count, "unit")} of {CompileReport.DescribeSkeleton(request.Skeleton)}, " +
                                     $"{Formatting.Plural(request.Threads, "thread")}, opset {request.Opset}{LoadNote(startLoad)}");

@@ -5,12 +5,14 @@ using CellCompiler.Runtime;
 namespace CellCompiler.Prediction;
 
 /// <summary>
-/// How calibration times a probe: <see cref="Rounds"/> rounds, each timing the short and the long
-/// chain one after the other (<see cref="Warmup"/> untimed runs, then <see cref="Runs"/> timed runs,
-/// p50, as `bench` does), so that both see the same background; a unit's time is the median over the
-/// rounds of (long p50 - short p50) / <see cref="Copies"/>.
+/// How calibration times a probe: <see cref="Rounds"/> rounds, each timing every probe of a unit one
+/// after the other (<see cref="Warmup"/> untimed runs, then <see cref="Runs"/> timed runs), so that
+/// all see the same background. A probe's time is the <see cref="Quantile"/> of all its timed runs:
+/// a low quantile rather than the median, because a run that another program interrupts only ever
+/// gets slower, so on a busy machine the low quantile still reads the undisturbed time (on a quiet
+/// machine the two differ by a few percent; see the README's accuracy figures).
 /// </summary>
-public sealed record CalibrationSettings(int Rounds = 7, int Warmup = 5, int Runs = 40, int Copies = 8)
+public sealed record CalibrationSettings(int Rounds = 7, int Warmup = 5, int Runs = 40, int Copies = 8, double Quantile = 0.1)
 {
     public static readonly CalibrationSettings Default = new();
 }
@@ -23,7 +25,7 @@ public sealed class UnitMeter(int threads, int opset, CalibrationSettings? setti
     public int Threads => threads;
     public int Opset => opset;
 
-    /// <summary>A primitive's or a merge's time, from the slope between a short and a long chain of it.</summary>
+    /// <summary>A primitive's or a merge's time: the difference between a long and a short chain of it, per extra copy.</summary>
     public UnitTime MeasureChain(LatencyUnit unit)
     {
         var copies = _settings.Copies;
@@ -35,21 +37,11 @@ public sealed class UnitMeter(int threads, int opset, CalibrationSettings? setti
             _ => throw new InvalidOperationException($"{unit.Key} is not measured as a chain"),
         };
         var load = SystemLoad.OneMinute();
-        using var shortSession = LatencyMeter.OpenSession(shortBytes, threads);
-        using var longSession = LatencyMeter.OpenSession(longBytes, threads);
-        var timing = new LatencySettings(threads, _settings.Warmup, _settings.Runs);
-        var slopes = new double[_settings.Rounds];
-        for (var r = 0; r < slopes.Length; r++)
-        {
-            var shortMs = LatencyMeter.MeasureSession(shortSession, 1, timing).P50Ms;
-            var longMs = LatencyMeter.MeasureSession(longSession, 1, timing).P50Ms;
-            slopes[r] = (longMs - shortMs) / copies;
-        }
-        Array.Sort(slopes);
-        var median = LatencyStats.Percentile(slopes, 0.5);
+        var times = Time([shortBytes, longBytes]);
+        var ms = (times[1] - times[0]) / copies;
         var how = string.Create(CultureInfo.InvariantCulture,
-            $"chain of {shortLength} vs {shortLength + copies}, median of {slopes.Length} rounds (rounds {Ms(slopes[0])} to {Ms(slopes[^1])} ms)");
-        return new UnitTime(Round(Math.Max(0, median)), how, DateTimeOffset.UtcNow, load);
+            $"chains of {shortLength} and {shortLength + copies}: {Quantile} of {Ms(times[0])} and {Ms(times[1])} ms");
+        return new UnitTime(Round(Math.Max(0, ms)), how, DateTimeOffset.UtcNow, load);
     }
 
     /// <summary>
@@ -61,13 +53,7 @@ public sealed class UnitMeter(int threads, int opset, CalibrationSettings? setti
     {
         var bytes = ProbeNetworks.Frame(frame.Skeleton, opset);
         var load = SystemLoad.OneMinute();
-        var timing = new LatencySettings(threads, _settings.Warmup, _settings.Runs);
-        var rounds = new double[_settings.Rounds];
-        using (var session = LatencyMeter.OpenSession(bytes, threads))
-            for (var r = 0; r < rounds.Length; r++)
-                rounds[r] = LatencyMeter.MeasureSession(session, 1, timing).P50Ms;
-        Array.Sort(rounds);
-        var total = LatencyStats.Percentile(rounds, 0.5);
+        var total = Time([bytes])[0];
 
         var profile = KernelProfile.Collect(bytes, 1, threads, _settings.Warmup, _settings.Runs * _settings.Rounds);
         var kernelMs = new Dictionary<NetworkPart, double>();
@@ -84,14 +70,35 @@ public sealed class UnitMeter(int threads, int opset, CalibrationSettings? setti
             parts.Add((frame.Reductions[t], kernelMs.GetValueOrDefault(new NetworkPart(NetworkPartKind.Reduction, t))));
         parts.Add((frame.Head, kernelMs.GetValueOrDefault(new NetworkPart(NetworkPartKind.Head))));
         var inParts = parts.Sum(p => p.Ms);
-        // The profiled kernels can add up to more than an unprofiled run when the machine is busy; the parts then share the run's time.
+        // Profiled kernels (mean times, profiler on) can add up to more than the frame's run; the parts then share its time.
         var scale = inParts > total ? total / inParts : 1;
         var how = string.Create(CultureInfo.InvariantCulture,
-            $"frame of {Ms(total)} ms (median of {rounds.Length} rounds, {Ms(rounds[0])} to {Ms(rounds[^1])} ms) split by profiled kernel time");
+            $"frame of {Ms(total)} ms ({Quantile}) split by profiled kernel time");
         var now = DateTimeOffset.UtcNow;
         var result = parts.Select(p => (p.Unit, new UnitTime(Round(p.Ms * scale), how, now, load))).ToList();
         result.Add((RunUnit.Instance, new UnitTime(Round(Math.Max(0, total - inParts * scale)), how, now, load)));
         return result;
+    }
+
+    private string Quantile => _settings.Quantile == 0.5 ? "median" : $"{_settings.Quantile * 100:0}th percentile";
+
+    /// <summary>Each model's time at batch 1: the quantile of its runs over all rounds, the models timed in turn within each round.</summary>
+    private double[] Time(IReadOnlyList<byte[]> models)
+    {
+        var sessions = new List<Microsoft.ML.OnnxRuntime.InferenceSession>();
+        try
+        {
+            foreach (var model in models) sessions.Add(LatencyMeter.OpenSession(model, threads));
+            var runs = sessions.Select(_ => new List<double>(_settings.Rounds * _settings.Runs)).ToList();
+            for (var r = 0; r < _settings.Rounds; r++)
+                for (var i = 0; i < sessions.Count; i++)
+                    runs[i].AddRange(LatencyMeter.TimeRuns(sessions[i], 1, _settings.Warmup, _settings.Runs));
+            return runs.Select(times => LatencyStats.Percentile([.. times.Order()], _settings.Quantile)).ToArray();
+        }
+        finally
+        {
+            foreach (var session in sessions) session.Dispose();
+        }
     }
 
     private static double Round(double ms) => Math.Round(ms, 6);

@@ -53,8 +53,20 @@ public static class LatencyMeter
         return new InferenceSession(model, options);
     }
 
-    /// <summary>One timing of an open session at a batch size: warm-up runs, then the timed runs of <paramref name="settings"/>.</summary>
-    public static LatencyStats MeasureSession(InferenceSession session, int batch, LatencySettings settings) => MeasureBatch(session, batch, settings);
+    /// <summary>The time of each of <paramref name="runs"/> runs of an open session, in ms, after <paramref name="warmup"/> untimed runs.</summary>
+    public static double[] TimeRuns(InferenceSession session, int batch, int warmup, int runs) =>
+        WithBinding(session, batch, (binding, runOptions, _) =>
+        {
+            for (var i = 0; i < warmup; i++) session.RunWithBinding(runOptions, binding);
+            var times = new double[runs];
+            for (var i = 0; i < runs; i++)
+            {
+                var start = Stopwatch.GetTimestamp();
+                session.RunWithBinding(runOptions, binding);
+                times[i] = (Stopwatch.GetTimestamp() - start) * 1000.0 / Stopwatch.Frequency;
+            }
+            return times;
+        });
 
     /// <summary>Runs the session <paramref name="runs"/> times at a batch size with bound inputs and outputs; used by profiling too.</summary>
     public static void RunBound(InferenceSession session, int batch, int runs) =>
