@@ -1,13 +1,14 @@
 #!/usr/bin/env bash
-# Accuracy of latency prediction on this machine (on demand; about 10 minutes for proxy, 30 to 60
-# for full on 2 quiet cores). For each preset and merge mode it calibrates one table (built-ins and
+# Accuracy of latency prediction on this machine (on demand; with 200 candidates per population
+# about 15 minutes for proxy and 1 to 2 hours for full on 2 cores). For each preset and merge mode it calibrates one table (built-ins and
 # the declared kinds below), samples two populations (built-ins only; declared kinds with a few
 # built-ins) and screens them with both `--latency` (measured p50) and `--latency-table`
 # (predicted), then prints, per population and per preset: the share within +-10% of the measured
 # p50, the median absolute error and Spearman's rank correlation (bench/latency_accuracy.py).
 #
-#   bench/latency-accuracy.sh                      # proxy and full, 60 candidates per population
+#   bench/latency-accuracy.sh                      # proxy and full, 200 candidates per population
 #   PRESETS=proxy COUNT=100 bench/latency-accuracy.sh
+#   FULL_COUNT=50 bench/latency-accuracy.sh        # the first 50 of each population for full
 #   KEEP=/tmp/acc bench/latency-accuracy.sh        # keep tables, populations and results there
 #
 # Run it on a quiet machine: the load average is logged before and after every step (conditions.txt),
@@ -18,7 +19,8 @@ root=$(pwd)
 work=${KEEP:-$(mktemp -d)}
 mkdir -p "$work"
 [[ -n "${KEEP:-}" ]] || trap 'rm -rf "$work"' EXIT
-count=${COUNT:-60}
+count=${COUNT:-200}
+full_count=${FULL_COUNT:-$count}
 presets=${PRESETS:-proxy full}
 seed=${SEED:-2026}
 
@@ -57,8 +59,10 @@ for preset in $presets; do
     cellc calibrate --skeleton "$preset" --merge "$merge" --primitives "$work/primitives.json" -o "$table" 2> "$work/calibrate-$preset-$merge.log" >/dev/null
     for vocabulary in builtins declared; do
       out="$work/$preset-$merge-$vocabulary.jsonl"
-      log "check $preset $merge $vocabulary ($count candidates)"
-      cellc check "$work/$vocabulary.jsonl" --skeleton "$preset" --merge "$merge" --latency "${timing[@]}" \
+      n=$count; [[ $preset == proxy ]] || n=$full_count
+      head -n "$n" "$work/$vocabulary.jsonl" > "$work/$vocabulary-$n.jsonl"
+      log "check $preset $merge $vocabulary ($n candidates)"
+      cellc check "$work/$vocabulary-$n.jsonl" --skeleton "$preset" --merge "$merge" --latency "${timing[@]}" \
         --latency-table "$table" --no-cache --jobs 1 --out "$out" >/dev/null 2>"$work/check-$preset-$merge-$vocabulary.log" || true
       results+=("$preset $merge $vocabulary=$out")
     done

@@ -112,7 +112,7 @@ public sealed partial class PredictionArithmeticTests
     public void CensusCountsWhatTheHandCountSays()
     {
         var genotype = GenotypeReader.Parse(HandCounted, "counted", "counted");
-        var census = CellCensus.Of(genotype, Liveness.Analyse(genotype));
+        var census = CellCensus.Of(genotype, Liveness.Analyse(genotype), MergeMode.Concat);
         var byName = census.Primitives.ToDictionary(kv => BuiltinPrimitives.NameOf(kv.Key)!, kv => kv.Value);
         Assert.Equal(new Dictionary<string, long>
         {
@@ -168,7 +168,7 @@ public sealed partial class PredictionArithmeticTests
         Assert.Equal(cases.Count, lines.Count);
         foreach (var (line, (_, genotype)) in lines.Zip(cases))
         {
-            var census = CellCensus.Of(genotype, Liveness.Analyse(genotype));
+            var census = CellCensus.Of(genotype, Liveness.Analyse(genotype), merge, asRun: false);
             var nodes = line.GetProperty("nodes").EnumerateArray().Select(n => (Name: n[0].GetString()!, Type: n[1].GetString()!, Inputs: n[2].GetInt32())).ToList();
             foreach (var (stage, cells) in new[] { (0, 2), (1, 1) })
             {
@@ -187,6 +187,40 @@ public sealed partial class PredictionArithmeticTests
                     applications.OrderBy(kv => kv.Key, StringComparer.Ordinal));
             }
         }
+    }
+
+    /// <summary>
+    /// The census as run against what ONNX Runtime runs, read from its own profiler: per stage, the
+    /// pooling kernels (MaxPool, AveragePool) of the optimized session. The runtime's common-subexpression
+    /// elimination runs a pooling applied twice to one tensor once; the census must count those once
+    /// too, while the compiled model (the census with asRun false) holds every application.
+    /// </summary>
+    [Fact]
+    public void CensusAsRunMatchesTheKernelsOnnxRuntimeRuns()
+    {
+        var skeleton = SkeletonPresets.All["proxy"] with { Stages = [new StageSpec(2, 8), new StageSpec(1, 16)] };
+        var shared = 0;
+        var checkedCases = 0;
+        for (var seed = 0; seed < 40 && checkedCases < 12; seed++)
+        {
+            var genotype = RandomGenotypes.Parse(seed);
+            var liveness = Liveness.Analyse(genotype);
+            if (!liveness.Cell(genotype).OutputIsLive) continue;
+            long Pools(CellCensus c) => c.Primitives.Where(kv => !kv.Key.Trainable).Sum(kv => kv.Value);
+            var asRun = Pools(CellCensus.Of(genotype, liveness, skeleton.Merge));
+            var emitted = Pools(CellCensus.Of(genotype, liveness, skeleton.Merge, asRun: false));
+            if (emitted == 0) continue;
+            checkedCases++;
+            if (asRun < emitted) shared++;
+            var profile = Runtime.KernelProfile.Collect(Compiler.Compile(genotype, skeleton).OnnxBytes, 1, 1, 1, 1);
+            foreach (var (stage, cells) in new[] { (0, 2), (1, 1) })
+            {
+                var kernels = profile.OpTypeByNode.Count(kv => kv.Key.StartsWith($"stage{stage}/", StringComparison.Ordinal) && kv.Value is "MaxPool" or "AveragePool");
+                Assert.True(asRun * cells == kernels, $"seed {seed}, stage {stage}: the census counts {asRun * cells} poolings as run, ONNX Runtime ran {kernels} (the model holds {emitted * cells})");
+            }
+        }
+        Assert.True(checkedCases >= 8, "most random genotypes have a live cell with a pooling");
+        Assert.True(shared > 0, "some random genotype pools one tensor twice, so the runtime's sharing is exercised");
     }
 
     /// <summary>A node name up to its last edge segment "eN:op" (the application of a primitive), and that op.</summary>

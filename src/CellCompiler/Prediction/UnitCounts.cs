@@ -12,7 +12,7 @@ public sealed record UnitCounts(IReadOnlyList<(LatencyUnit Unit, long Count)> It
 {
     public static UnitCounts Of(Genotype genotype, Liveness liveness, NetworkFrame frame)
     {
-        var census = CellCensus.Of(genotype, liveness);
+        var census = CellCensus.Of(genotype, liveness, frame.Skeleton.Merge);
         var items = new List<(LatencyUnit, long)>();
         foreach (var unit in frame.Units) items.Add((unit, 1));
         var skeleton = frame.Skeleton;
