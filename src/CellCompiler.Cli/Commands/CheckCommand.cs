@@ -41,6 +41,10 @@ public static class CheckCommand
             Description = "Memory the candidates may use at once, all workers together, in GB (default: half of the memory available); a candidate that needs more alone is not run.",
             CustomParser = HumanNumber.PositiveAmount("GB"),
         };
+        var runOverBudget = new Option<bool>("--run-over-budget")
+        {
+            Description = "Also run candidates already over a budget that needs no run (params, MACs, memory), so that their record says whether they work; by default they are compiled and counted but not run.",
+        };
         var skeleton = new SkeletonOptions();
         var settings = new CompileSettingsOptions();
         var budgets = new BudgetOptions();
@@ -52,7 +56,7 @@ public static class CheckCommand
             "Statuses: ok, over_budget, broken, invalid. Exit 0 if all are ok, 1 otherwise, 2 on a bad command line " +
             "or a bad single genotype file.");
         command.Arguments.Add(inputs);
-        foreach (var option in new Option[] { json, output, jobs, ordered, cachePath, noCache, resume, shard, latency, maxRunNodes, memoryLimit })
+        foreach (var option in new Option[] { json, output, jobs, ordered, cachePath, noCache, resume, shard, latency, maxRunNodes, memoryLimit, runOverBudget })
             command.Options.Add(option);
         skeleton.AddTo(command);
         settings.AddTo(command);
@@ -75,7 +79,7 @@ public static class CheckCommand
             {
                 Inputs = parse.GetValue(inputs)!,
                 Options = new CheckOptions(skeleton.Resolve(parse), settings.Resolve(parse), budget,
-                    parse.GetValue(budgets.TrainBatch), latencySettings, parse.GetValue(maxRunNodes)),
+                    parse.GetValue(budgets.TrainBatch), latencySettings, parse.GetValue(maxRunNodes), parse.GetValue(runOverBudget)),
                 Jobs = parse.GetValue(jobs),
                 Ordered = parse.GetValue(ordered),
                 Shard = shardText is null ? ShardSelector.All

@@ -103,6 +103,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             Ops = figures.OpCounts,
             Warnings = warnings,
             Notes = notes,
+            SmokeTested = evaluation.SmokeTested,
             OnnxBytes = evaluation.OnnxBytes,
             TrainMemoryBytes = trainMemory,
             LatencyMs = latency?.AtBatch(1)?.P50Ms,
@@ -140,7 +141,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         var evaluation = cache?.FindEvaluation(key);
         if (evaluation?.Figures is null) evaluation = null; // entries of older builds without figures are not trusted
         var cached = evaluation is not null;
-        if (evaluation is null || (!evaluation.SmokeTested && !OverStaticBudget(evaluation)))
+        if (evaluation is null || (!evaluation.SmokeTested && WouldRun(evaluation)))
         {
             cached = false;
             (evaluation, model) = Evaluate(genotype, hash);
@@ -165,8 +166,10 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     private long TrainMemory(Evaluation evaluation) =>
         TrainingMemory.EstimateBytes(evaluation.ActivationBytesPerSample!.Value, evaluation.Figures!.Params, evaluation.Figures.Buffers, options.TrainBatch);
 
-    private bool OverStaticBudget(Evaluation evaluation) =>
-        Judge(evaluation.Figures!, TrainMemory(evaluation), null, options).Item1 != CheckStatus.Ok || TooLargeToRun(evaluation.Figures!) is not null;
+    /// <summary>Whether these options run a network that a cached evaluation did not run.</summary>
+    private bool WouldRun(Evaluation evaluation) =>
+        TooLargeToRun(evaluation.Figures!) is null
+        && (options.RunOverBudget || Judge(evaluation.Figures!, TrainMemory(evaluation), null, options).Item1 == CheckStatus.Ok);
 
     /// <summary>
     /// Memory to run at batch 2, estimated: the model bytes three times (ours, the runtime's copy and
@@ -222,8 +225,9 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         }
         var activation = TrainingMemory.ActivationBytesPerSample(model.Network);
         var compiled = new Evaluation(null, null, null, model.OutputShape.Dims, model.Figures, activation, model.OnnxBytes.LongLength, SmokeTested: false);
-        // Budgets that need no run are judged first: a candidate already over one is not run at all.
-        if (Judge(model.Figures, TrainMemory(compiled), null, options).Item1 != CheckStatus.Ok)
+        // Budgets that need no run are judged first: a candidate already over one is not run at all
+        // unless the user asks for it.
+        if (!options.RunOverBudget && Judge(model.Figures, TrainMemory(compiled), null, options).Item1 != CheckStatus.Ok)
             return (compiled, model.OnnxBytes);
         if (TooLargeToRun(model.Figures) is { } tooLarge)
             return (compiled with { FailureReason = tooLarge }, model.OnnxBytes);

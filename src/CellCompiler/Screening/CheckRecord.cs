@@ -33,6 +33,9 @@ public sealed record CheckRecord
 
     /// <summary>Findings for programs to act on without reading prose, e.g. "trivial-cell" (no trainable op in the cell).</summary>
     public IReadOnlyList<string> Notes { get; init; } = [];
+    /// <summary>Whether the network was run on ONNX Runtime (false: compiled and counted only, e.g. already over a budget); null when it never compiled.</summary>
+    public bool? SmokeTested { get; init; }
+
     public long? OnnxBytes { get; init; }
     public long? TrainMemoryBytes { get; init; }
 
