@@ -8,7 +8,7 @@ namespace CellCompiler.Runtime;
 /// depend on the input (two different samples give different logits).
 /// The session runs the graph as written, without graph optimizations (<see cref="ForwardPass.AsWritten"/>):
 /// that is the cheapest session to create, and the tests show it finds every failure that a fully
-/// optimized session finds (SmokeSettingsTests).
+/// optimized session finds (tests/CellCompiler.Tests/SmokeSettingsTests.cs).
 /// </summary>
 public static class SmokeTest
 {
