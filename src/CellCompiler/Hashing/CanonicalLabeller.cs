@@ -22,7 +22,10 @@ namespace CellCompiler.Hashing;
 internal sealed class CanonicalLabeller
 {
     private readonly int[][] _in;
+    private readonly int[][] _inLabel;
     private readonly int[][] _out;
+    private readonly UInt128[][] _inSpread;
+    private readonly UInt128[][] _outSpread;
     private readonly UInt128[] _colour;
     private readonly SearchBudget _budget;
     private readonly int[] _mark;
@@ -30,10 +33,34 @@ internal sealed class CanonicalLabeller
     private readonly UInt128[] _scratch;
     private int _stamp;
 
-    private CanonicalLabeller(int[][] inputs, int[][] consumers, UInt128[] colours, SearchBudget budget)
+    private CanonicalLabeller(int[][] inputs, int[][] inputLabels, UInt128[] colours, SearchBudget budget)
     {
+        var n = inputs.Length;
         _in = inputs;
-        _out = consumers;
+        _inLabel = inputLabels;
+        // Consumers, and a mixed image of every edge label, for the refinement passes.
+        var counts = new int[n];
+        foreach (var list in inputs)
+            foreach (var u in list) counts[u]++;
+        _out = new int[n][];
+        _outSpread = new UInt128[n][];
+        _inSpread = new UInt128[n][];
+        for (var v = 0; v < n; v++)
+        {
+            _out[v] = new int[counts[v]];
+            _outSpread[v] = new UInt128[counts[v]];
+            _inSpread[v] = new UInt128[inputs[v].Length];
+        }
+        Array.Clear(counts);
+        for (var v = 0; v < n; v++)
+            for (var k = 0; k < inputs[v].Length; k++)
+            {
+                var u = inputs[v][k];
+                var spread = Colours.Spread((UInt128)inputLabels[v][k] + 0x5EED);
+                _inSpread[v][k] = spread;
+                _out[u][counts[u]] = v;
+                _outSpread[u][counts[u]++] = spread;
+            }
         _colour = colours;
         _budget = budget;
         _mark = new int[inputs.Length];
@@ -46,11 +73,12 @@ internal sealed class CanonicalLabeller
 
     /// <summary>
     /// All nodes in canonical order. Nodes are numbered in a topological order (inputs before
-    /// consumers); <paramref name="colours"/> are the initial colours (exact label ranks) and are overwritten.
+    /// consumers); each input edge carries a label (an exact rank, 0 for none);
+    /// <paramref name="colours"/> are the initial colours (exact label ranks) and are overwritten.
     /// </summary>
-    public static int[] Order(int[][] inputs, int[][] consumers, UInt128[] colours, SearchBudget budget, out bool exact)
+    public static int[] Order(int[][] inputs, int[][] inputLabels, UInt128[] colours, SearchBudget budget, out bool exact)
     {
-        var labeller = new CanonicalLabeller(inputs, consumers, colours, budget);
+        var labeller = new CanonicalLabeller(inputs, inputLabels, colours, budget);
         var all = new int[inputs.Length];
         for (var v = 0; v < all.Length; v++) all[v] = v;
         var order = labeller.Canon(all, quick: false, generators: null);
@@ -86,7 +114,7 @@ internal sealed class CanonicalLabeller
         }
         if (shared == 0) return byColour;
 
-        var parts = Parts(nodes, stamp, shared);
+        var parts = Parts(nodes, stamp);
         var result = new List<int>(nodes.Length);
         result.AddRange(singles);
         if (parts.Count == 1)
@@ -98,6 +126,11 @@ internal sealed class CanonicalLabeller
         var canonised = new List<(int[] Order, ulong[] Certificate)>(parts.Count);
         foreach (var part in parts)
         {
+            if (part.Length == 1)
+            {
+                canonised.Add((part, Certificate(part)));
+                continue;
+            }
             var saved = Save(part);
             var order = Canon(part, quick, generators);
             Restore(part, saved);
@@ -115,7 +148,7 @@ internal sealed class CanonicalLabeller
     }
 
     /// <summary>Connected parts of the marked (colour-sharing) nodes, each in ascending node order.</summary>
-    private List<int[]> Parts(int[] nodes, int stamp, int shared)
+    private List<int[]> Parts(int[] nodes, int stamp)
     {
         var parent = new int[nodes.Length];
         for (var i = 0; i < nodes.Length; i++)
@@ -137,7 +170,7 @@ internal sealed class CanonicalLabeller
             var root = Find(parent, i);
             if (!partOfRoot.TryGetValue(root, out var part))
             {
-                part = new List<int>(shared);
+                part = [];
                 partOfRoot[root] = part;
                 parts.Add(part);
             }
@@ -160,6 +193,7 @@ internal sealed class CanonicalLabeller
 
         var found = new List<int[]>();
         var orbit = new Dictionary<int, int>();
+        AddTwinGenerators(target, found, orbit);
         var tried = new List<int>();
         int[]? best = null, firstLeaf = null;
         ulong[]? bestCertificate = null, firstLeafCertificate = null;
@@ -169,27 +203,20 @@ internal sealed class CanonicalLabeller
             {
                 if (tried.Exists(u => Find(orbit, u) == Find(orbit, v))) continue;
                 if (_budget.Exhausted) { Exact = false; break; }
+
+                // The first leaf below v: if it equals the first leaf below the first branch, the map
+                // between them is an automorphism, and once it joins v's orbit to that branch the whole subtree is known.
+                firstLeaf ??= QuickLeaf(part, saved, tried[0], out firstLeafCertificate);
+                var leaf = QuickLeaf(part, saved, v, out var leafCertificate);
+                if (Compare(leafCertificate, firstLeafCertificate!) == 0)
+                {
+                    AddGenerator(found, orbit, Map(firstLeaf, leaf));
+                    if (Find(orbit, v) == Find(orbit, tried[0])) continue;
+                }
             }
             tried.Add(v);
 
-            // The first leaf below v: if it equals the first leaf below the first branch, the map
-            // between them is an automorphism, and once it joins v's orbit to that branch the whole subtree is known.
             Restore(part, saved);
-            Individualise(v);
-            var leaf = Canon(part, quick: true, generators: null);
-            Restore(part, saved);
-            var leafCertificate = Certificate(leaf);
-            if (firstLeaf is null)
-            {
-                firstLeaf = leaf;
-                firstLeafCertificate = leafCertificate;
-            }
-            else if (Compare(leafCertificate, firstLeafCertificate!) == 0)
-            {
-                AddGenerator(found, orbit, Map(firstLeaf, leaf));
-                if (Find(orbit, v) == Find(orbit, tried[0])) continue;
-            }
-
             Individualise(v);
             var below = new List<int[]>();
             var order = Canon(part, quick: false, below);
@@ -207,6 +234,42 @@ internal sealed class CanonicalLabeller
         }
         generators?.AddRange(found);
         return best!;
+    }
+
+    private int[] QuickLeaf(int[] part, UInt128[] saved, int v, out ulong[] certificate)
+    {
+        Restore(part, saved);
+        Individualise(v);
+        var leaf = Canon(part, quick: true, generators: null);
+        Restore(part, saved);
+        certificate = Certificate(leaf);
+        return leaf;
+    }
+
+    /// <summary>
+    /// Twins (same inputs and same consumers, with the same edge labels) can be swapped without
+    /// changing anything: each such swap is an automorphism, so twins need one branch between them.
+    /// </summary>
+    private void AddTwinGenerators(int[] cell, List<int[]> found, Dictionary<int, int> orbit)
+    {
+        var firstOfSignature = new Dictionary<string, int>(StringComparer.Ordinal);
+        foreach (var v in cell)
+        {
+            var signature = Signature(v);
+            if (firstOfSignature.TryGetValue(signature, out var twin)) AddGenerator(found, orbit, [twin, v, v, twin]);
+            else firstOfSignature[signature] = v;
+        }
+    }
+
+    private string Signature(int v)
+    {
+        var inputs = new List<(int, int)>(_in[v].Length);
+        for (var k = 0; k < _in[v].Length; k++) inputs.Add((_in[v][k], _inLabel[v][k]));
+        inputs.Sort();
+        var consumers = new List<(int, UInt128)>(_out[v].Length);
+        for (var k = 0; k < _out[v].Length; k++) consumers.Add((_out[v][k], _outSpread[v][k]));
+        consumers.Sort();
+        return string.Join(",", inputs) + "|" + string.Join(",", consumers);
     }
 
     /// <summary>The smallest colour class of the part (ties: the smallest colour), in ascending node order.</summary>
@@ -247,14 +310,18 @@ internal sealed class CanonicalLabeller
             foreach (var v in nodes)
             {
                 UInt128 sum = 0;
-                foreach (var u in _in[v]) sum += Colours.Spread(_colour[u]);
+                var inputs = _in[v];
+                var spreads = _inSpread[v];
+                for (var k = 0; k < inputs.Length; k++) sum += Colours.Spread(_colour[inputs[k]] + spreads[k]);
                 _colour[v] = Colours.Combine(_colour[v], sum, Colours.Forward);
             }
             for (var i = nodes.Length - 1; i >= 0; i--)
             {
                 var v = nodes[i];
                 UInt128 sum = 0;
-                foreach (var w in _out[v]) sum += Colours.Spread(_colour[w]);
+                var consumers = _out[v];
+                var spreads = _outSpread[v];
+                for (var k = 0; k < consumers.Length; k++) sum += Colours.Spread(_colour[consumers[k]] + spreads[k]);
                 _colour[v] = Colours.Combine(_colour[v], sum, Colours.Backward);
             }
             _budget.Spend(work);
@@ -277,7 +344,7 @@ internal sealed class CanonicalLabeller
 
     /// <summary>
     /// Exact description of the nodes in <paramref name="order"/> under the current colours: each
-    /// node's colour, then each node's inputs among them as positions (with multiplicity). Edges to
+    /// node's colour, then each node's inputs among them as (position, edge label), with multiplicity. Edges to
     /// nodes outside are fixed by the colours, because the colouring is equitable.
     /// </summary>
     private ulong[] Certificate(int[] order)
@@ -294,15 +361,16 @@ internal sealed class CanonicalLabeller
             words.Add((ulong)(_colour[v] >> 64));
             words.Add((ulong)_colour[v]);
         }
-        var positions = new List<int>();
+        var edges = new List<ulong>();
         foreach (var v in order)
         {
-            positions.Clear();
-            foreach (var u in _in[v])
-                if (_mark[u] == stamp) positions.Add(_position[u]);
-            positions.Sort();
-            words.Add((ulong)positions.Count);
-            foreach (var p in positions) words.Add((ulong)p);
+            edges.Clear();
+            var inputs = _in[v];
+            for (var k = 0; k < inputs.Length; k++)
+                if (_mark[inputs[k]] == stamp) edges.Add(((ulong)(uint)_position[inputs[k]] << 32) | (uint)_inLabel[v][k]);
+            edges.Sort();
+            words.Add((ulong)edges.Count);
+            words.AddRange(edges);
         }
         return [.. words];
     }

@@ -1,3 +1,5 @@
+using System.Buffers;
+using System.Buffers.Binary;
 using System.Security.Cryptography;
 using System.Text;
 
@@ -21,34 +23,52 @@ namespace CellCompiler.Hashing;
 /// </summary>
 internal sealed class NetworkReducer
 {
-    private const string EntryAtom = "\u0001entry";
-    private static readonly byte[] Domain = Encoding.UTF8.GetBytes("cellc-network/1");
+    private static readonly byte[] Domain = "cellc-network/1"u8.ToArray();
+    private const int EntryAtom = 0;
 
-    private readonly List<int>[] _inputs;
-    private readonly List<int>[] _consumers;
-    private readonly List<string>[] _labels;
+    private readonly LayerGraph _graph;
+    private readonly SearchBudget _budget;
+    private readonly int[][] _inputs;
+    // Consumers as built; entries may name nodes since absorbed, which Resolve maps to their successor.
+    private readonly int[] _consumerStart;
+    private readonly int[] _consumerList;
+    private readonly int[] _consumerCount;
+    private readonly int[] _forward;
     private readonly bool[] _removed;
     private readonly int[] _idom;
     private readonly int[] _depth;
     private readonly int[] _mark;
     private readonly int[] _local;
-    private readonly SearchBudget _budget;
+    // Each node's label is a chain of atoms: _first/_last per node, _next per chain link.
+    private readonly int[] _first;
+    private readonly int[] _last;
+    private readonly List<int> _linkAtom = [];
+    private readonly List<int> _linkNext = [];
+    private readonly List<string> _atoms = ["\u0001entry"];
+    private readonly List<byte[]> _atomBytes = [];
+    private readonly Dictionary<string, int> _atomIds = new(StringComparer.Ordinal);
+    private readonly ArrayBufferWriter<byte> _buffer = new(1024);
+    private readonly Dictionary<string, byte[]> _regionCache = new(StringComparer.Ordinal);
     private int _stamp;
 
     public bool Exact { get; private set; } = true;
 
     private NetworkReducer(LayerGraph graph, SearchBudget budget)
     {
+        _graph = graph;
         _budget = budget;
         var n = graph.Count;
-        _inputs = new List<int>[n];
-        _consumers = new List<int>[n];
-        _labels = new List<string>[n];
+        _inputs = new int[n][];
+        _consumerCount = new int[n];
+        _forward = new int[n];
         _removed = new bool[n];
         _idom = new int[n];
         _depth = new int[n];
         _mark = new int[n];
         _local = new int[n];
+        _first = new int[n];
+        _last = new int[n];
+        _atomIds[_atoms[0]] = 0;
 
         // Only nodes the output depends on count (a sum flattened away leaves its node unread).
         var needed = new bool[n];
@@ -56,29 +76,32 @@ internal sealed class NetworkReducer
         for (var v = n - 1; v >= 0; v--)
             if (needed[v])
                 foreach (var u in graph.Inputs(v)) needed[u] = true;
+
         for (var v = 0; v < n; v++)
         {
+            _forward[v] = v;
             _removed[v] = !needed[v];
-            _consumers[v] = [];
-        }
-        for (var v = 0; v < n; v++)
-        {
             if (_removed[v]) continue;
-            _inputs[v] = [.. graph.Inputs(v)];
-            _labels[v] = [(graph.IsJoin(v) ? "J:" : "L:") + graph.Label(v)];
-            foreach (var u in _inputs[v]) _consumers[u].Add(v);
+            _inputs[v] = (int[])graph.Inputs(v);
+            foreach (var u in _inputs[v]) _consumerCount[u]++;
+            var atom = v == 0 ? EntryAtom : Atom((graph.IsJoin(v) ? "J:" : "L:") + graph.Label(v));
+            _first[v] = _last[v] = NewLink(atom);
         }
-        _labels[0] = [EntryAtom];
+        _consumerStart = new int[n + 1];
+        for (var v = 0; v < n; v++) _consumerStart[v + 1] = _consumerStart[v] + _consumerCount[v];
+        _consumerList = new int[_consumerStart[n]];
+        var fill = (int[])_consumerStart.Clone();
+        for (var v = 0; v < n; v++)
+            if (!_removed[v])
+                foreach (var u in _inputs[v]) _consumerList[fill[u]++] = v;
     }
 
     /// <summary>The SHA-256 digest of the graph's canonical form.</summary>
     public static byte[] Digest(LayerGraph graph, SearchBudget budget, out bool exact)
     {
+        exact = true;
         if (graph.Output == LayerGraph.Input)
-        {
-            exact = true;
             return SHA256.HashData([.. Domain, .. "\nidentity"u8]);
-        }
         var reducer = new NetworkReducer(graph, budget);
         for (var t = 1; t < graph.Count; t++)
             if (!reducer._removed[t]) reducer.Visit(t);
@@ -90,15 +113,33 @@ internal sealed class NetworkReducer
         return digest;
     }
 
+    private int Atom(string text)
+    {
+        if (!_atomIds.TryGetValue(text, out var id))
+        {
+            id = _atoms.Count;
+            _atoms.Add(text);
+            _atomIds[text] = id;
+        }
+        return id;
+    }
+
+    private int NewLink(int atom)
+    {
+        _linkAtom.Add(atom);
+        _linkNext.Add(-1);
+        return _linkAtom.Count - 1;
+    }
+
     private void Visit(int t)
     {
         var inputs = _inputs[t];
         var s = inputs[0];
-        for (var k = 1; k < inputs.Count; k++) s = CommonDominator(s, inputs[k]);
+        for (var k = 1; k < inputs.Length; k++) s = CommonDominator(s, inputs[k]);
         _idom[t] = s;
         _depth[t] = _depth[s] + 1;
 
-        if (inputs.Count > 1) TryContract(t, s);
+        if (inputs.Length > 1) TryContract(t, s);
         TryAbsorbInput(t);
     }
 
@@ -117,161 +158,287 @@ internal sealed class NetworkReducer
         return a;
     }
 
+    /// <summary>The live node that now stands for <paramref name="v"/> (itself, or the node that absorbed it).</summary>
+    private int Resolve(int v)
+    {
+        var root = v;
+        while (_forward[root] != root) root = _forward[root];
+        while (_forward[v] != root)
+        {
+            var next = _forward[v];
+            _forward[v] = root;
+            v = next;
+        }
+        return root;
+    }
+
     /// <summary>Replaces the nodes between s and t by one node when nothing outside reads them but t.</summary>
     private void TryContract(int t, int s)
     {
         var stamp = ++_stamp;
         var region = new List<int> { t };
         _mark[t] = stamp;
+        var edgesFromS = 0;
         // Every path from the cell input to t passes s, so walking inputs back from t without crossing s stays after s.
         for (var i = 0; i < region.Count; i++)
             foreach (var u in _inputs[region[i]])
-                if (u != s && _mark[u] != stamp)
+            {
+                if (u == s) edgesFromS++;
+                else if (_mark[u] != stamp)
                 {
                     _mark[u] = stamp;
                     region.Add(u);
                 }
+            }
         if (region.Count < 2) return;
         foreach (var v in region)
         {
             if (v == t) continue;
-            foreach (var w in _consumers[v])
-                if (_mark[w] != stamp) return;
+            for (var k = _consumerStart[v]; k < _consumerStart[v + 1]; k++)
+                if (_mark[Resolve(_consumerList[k])] != stamp) return;
         }
 
         region.Sort();
-        var atom = "\u0001" + Convert.ToHexStringLower(RegionDigest(s, region));
+        var atom = Atom("\u0001" + Convert.ToHexStringLower(RegionDigest(s, region)));
         foreach (var v in region)
         {
             if (v == t) continue;
             _removed[v] = true;
+            _forward[v] = t;
             _inputs[v] = null!;
-            _labels[v] = null!;
         }
-        _consumers[s].RemoveAll(w => _mark[w] == stamp);
-        _consumers[s].Add(t);
+        _consumerCount[s] -= edgesFromS - 1;
         _inputs[t] = [s];
-        _labels[t] = [atom];
+        _first[t] = _last[t] = NewLink(atom);
     }
 
     /// <summary>Chain step: t's only input u has no other consumer, so t absorbs u.</summary>
     private void TryAbsorbInput(int t)
     {
-        if (_inputs[t].Count != 1) return;
+        if (_inputs[t].Length != 1) return;
         var u = _inputs[t][0];
-        if (u == LayerGraph.Input || _consumers[u].Count != 1) return;
-        _labels[u].AddRange(_labels[t]);
-        _labels[t] = _labels[u];
+        if (u == LayerGraph.Input || _consumerCount[u] != 1) return;
+        _linkNext[_last[u]] = _first[t];
+        _first[t] = _first[u];
         _inputs[t] = _inputs[u];
-        foreach (var p in _inputs[u])
-        {
-            var consumers = _consumers[p];
-            for (var i = 0; i < consumers.Count; i++)
-                if (consumers[i] == u) consumers[i] = t;
-        }
         _idom[t] = _idom[u];
         _depth[t] = _depth[u];
         _removed[u] = true;
+        _forward[u] = t;
         _inputs[u] = null!;
-        _labels[u] = null!;
     }
 
     /// <summary>
     /// Digest of the subgraph made of <paramref name="entry"/> (as the anonymous input) and the
-    /// ascending <paramref name="nodes"/>, which read only each other and the entry.
+    /// ascending <paramref name="nodes"/>, which read only each other and the entry; the last node
+    /// is the region's output. A node with one input and one consumer (an op between two merges,
+    /// typically) becomes a labelled edge, which keeps the graphs that the labeller sees small.
     /// </summary>
     private byte[] RegionDigest(int entry, List<int> nodes)
     {
-        var count = nodes.Count + (nodes[0] == entry ? 0 : 1);
+        var offset = nodes[0] == entry ? 1 : 0;
+        var count = nodes.Count + 1 - offset;
         var members = new int[count];
         members[0] = entry;
-        var offset = nodes[0] == entry ? 1 : 0;
         for (var i = offset; i < nodes.Count; i++) members[i + 1 - offset] = nodes[i];
         for (var i = 0; i < count; i++) _local[members[i]] = i;
 
-        var inputs = new int[count][];
-        var consumers = new List<int>[count];
-        for (var i = 0; i < count; i++) consumers[i] = [];
-        inputs[0] = [];
+        var consumerCounts = new int[count];
         for (var i = 1; i < count; i++)
+            foreach (var u in _inputs[members[i]]) consumerCounts[_local[u]]++;
+        var kept = new int[count];
+        var keptCount = 0;
+        for (var i = 0; i < count; i++)
         {
-            var source = _inputs[members[i]];
-            var mapped = new int[source.Count];
-            for (var k = 0; k < mapped.Length; k++)
-            {
-                mapped[k] = _local[source[k]];
-                consumers[mapped[k]].Add(i);
-            }
-            inputs[i] = mapped;
+            var isEdge = i != 0 && i != count - 1 && _inputs[members[i]].Length == 1 && consumerCounts[i] == 1;
+            kept[i] = isEdge ? -1 : keptCount++;
         }
-        var labels = new List<string>[count];
-        labels[0] = [EntryAtom];
-        for (var i = 1; i < count; i++) labels[i] = _labels[members[i]];
 
-        var colours = LabelRanks(labels);
-        var order = CanonicalLabeller.Order(inputs, consumers.Select(c => c.ToArray()).ToArray(), colours, _budget, out var exact);
+        var labels = new int[keptCount][];
+        var inputs = new int[keptCount][];
+        var edgeLabels = new int[keptCount][][];
+        for (var i = 0; i < count; i++)
+        {
+            if (kept[i] < 0) continue;
+            var k = kept[i];
+            labels[k] = i == 0 ? [EntryAtom] : Chain(members[i]);
+            var source = i == 0 ? [] : _inputs[members[i]];
+            inputs[k] = new int[source.Length];
+            edgeLabels[k] = new int[source.Length][];
+            for (var e = 0; e < source.Length; e++)
+            {
+                var u = _local[source[e]];
+                if (kept[u] >= 0)
+                {
+                    inputs[k][e] = kept[u];
+                    edgeLabels[k][e] = [];
+                }
+                else
+                {
+                    inputs[k][e] = kept[_local[_inputs[members[u]][0]]];
+                    edgeLabels[k][e] = Chain(members[u]);
+                }
+            }
+        }
+
+        var key = CacheKey(labels, inputs, edgeLabels);
+        if (_regionCache.TryGetValue(key, out var cached)) return cached;
+
+        var colours = Ranks(labels, offset: 0);
+        var edgeRanks = EdgeRanks(edgeLabels);
+        var order = CanonicalLabeller.Order(inputs, edgeRanks, colours, _budget, out var exact);
         if (!exact) Exact = false;
-        return Serialise(order, labels, inputs);
+        var digest = Serialise(order, labels, inputs, edgeLabels, edgeRanks);
+        _regionCache[key] = digest;
+        return digest;
     }
 
-    /// <summary>Initial colours: the rank of each node's exact label sequence, so no two labels ever share a colour.</summary>
-    private static UInt128[] LabelRanks(List<string>[] labels)
+    /// <summary>The region exactly as built (atom ids and local numbers): instances of one motif are built alike and are labelled once.</summary>
+    private string CacheKey(int[][] labels, int[][] inputs, int[][][] edgeLabels)
     {
-        var sorted = Enumerable.Range(0, labels.Length).ToArray();
-        Array.Sort(sorted, (a, b) => CompareLabels(labels[a], labels[b]));
-        var colours = new UInt128[labels.Length];
-        var rank = 0;
-        for (var i = 0; i < sorted.Length; i++)
+        _buffer.Clear();
+        for (var v = 0; v < labels.Length; v++)
         {
-            if (i > 0 && CompareLabels(labels[sorted[i - 1]], labels[sorted[i]]) != 0) rank++;
-            colours[sorted[i]] = (UInt128)rank;
+            WriteInts(labels[v]);
+            WriteInt(inputs[v].Length);
+            for (var e = 0; e < inputs[v].Length; e++)
+            {
+                WriteInt(inputs[v][e]);
+                WriteInts(edgeLabels[v][e]);
+            }
         }
+        return Convert.ToBase64String(_buffer.WrittenSpan);
+    }
+
+    private void WriteInts(int[] values)
+    {
+        WriteInt(values.Length);
+        foreach (var value in values) WriteInt(value);
+    }
+
+    /// <summary>Edge label ranks, 0 for an edge without a label, so equal labels and only they share a rank.</summary>
+    private int[][] EdgeRanks(int[][][] edgeLabels)
+    {
+        var all = new List<int[]>();
+        foreach (var perNode in edgeLabels)
+            foreach (var label in perNode)
+                if (label.Length > 0) all.Add(label);
+        var ranks = Ranks([.. all], offset: 1);
+        var result = new int[edgeLabels.Length][];
+        var next = 0;
+        for (var v = 0; v < edgeLabels.Length; v++)
+        {
+            result[v] = new int[edgeLabels[v].Length];
+            for (var e = 0; e < result[v].Length; e++)
+                result[v][e] = edgeLabels[v][e].Length == 0 ? 0 : (int)ranks[next++];
+        }
+        return result;
+    }
+
+    private int[] Chain(int v)
+    {
+        var atoms = new List<int>();
+        for (var link = _first[v]; link >= 0; link = _linkNext[link])
+        {
+            atoms.Add(_linkAtom[link]);
+            if (link == _last[v]) break;
+        }
+        return [.. atoms];
+    }
+
+    /// <summary>The rank (from <paramref name="offset"/>) of each exact label sequence: equal labels, and only they, share a rank.</summary>
+    private UInt128[] Ranks(int[][] labels, int offset)
+    {
+        // Distinct sequences first (regions repeat few labels many times), then their order by content.
+        var distinct = new Dictionary<int[], int>(SequenceComparer.Instance);
+        var index = new int[labels.Length];
+        for (var i = 0; i < labels.Length; i++)
+        {
+            if (!distinct.TryGetValue(labels[i], out var d))
+            {
+                d = distinct.Count;
+                distinct[labels[i]] = d;
+            }
+            index[i] = d;
+        }
+        var sequences = new int[distinct.Count][];
+        foreach (var (sequence, d) in distinct) sequences[d] = sequence;
+        var byContent = Enumerable.Range(0, sequences.Length).ToArray();
+        Array.Sort(byContent, (a, b) => CompareLabels(sequences[a], sequences[b]));
+        var rankOf = new int[sequences.Length];
+        for (var r = 0; r < byContent.Length; r++) rankOf[byContent[r]] = offset + r;
+        var colours = new UInt128[labels.Length];
+        for (var i = 0; i < labels.Length; i++) colours[i] = (UInt128)rankOf[index[i]];
         return colours;
     }
 
-    private static int CompareLabels(List<string> a, List<string> b)
+    private sealed class SequenceComparer : IEqualityComparer<int[]>
     {
-        var c = a.Count.CompareTo(b.Count);
-        for (var i = 0; c == 0 && i < a.Count; i++) c = string.CompareOrdinal(a[i], b[i]);
+        public static SequenceComparer Instance { get; } = new();
+
+        public bool Equals(int[]? x, int[]? y) => x.AsSpan().SequenceEqual(y);
+
+        public int GetHashCode(int[] values)
+        {
+            var hash = new HashCode();
+            hash.AddBytes(System.Runtime.InteropServices.MemoryMarshal.AsBytes(values.AsSpan()));
+            return hash.ToHashCode();
+        }
+    }
+
+    private int CompareLabels(int[] a, int[] b)
+    {
+        var c = a.Length.CompareTo(b.Length);
+        for (var i = 0; c == 0 && i < a.Length; i++)
+            if (a[i] != b[i]) c = string.CompareOrdinal(_atoms[a[i]], _atoms[b[i]]);
         return c;
     }
 
-    /// <summary>SHA-256 of the relabelled graph: node count, each node's labels, each node's inputs as canonical positions.</summary>
-    private static byte[] Serialise(int[] order, List<string>[] labels, int[][] inputs)
+    /// <summary>SHA-256 of the relabelled graph: node count, each node's labels, each node's inputs as (canonical position, edge labels).</summary>
+    private byte[] Serialise(int[] order, int[][] labels, int[][] inputs, int[][][] edgeLabels, int[][] edgeRanks)
     {
         var position = new int[order.Length];
         for (var i = 0; i < order.Length; i++) position[order[i]] = i;
-        using var hash = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
-        var buffer = new List<byte>(256);
-        buffer.AddRange(Domain);
-        AddInt(buffer, order.Length);
+        _buffer.Clear();
+        _buffer.Write(Domain);
+        WriteInt(order.Length);
+        var edges = new List<(int Position, int Rank, int[] Label)>();
         foreach (var v in order)
         {
-            AddInt(buffer, labels[v].Count);
-            foreach (var atom in labels[v])
+            WriteAtoms(labels[v]);
+            edges.Clear();
+            for (var e = 0; e < inputs[v].Length; e++) edges.Add((position[inputs[v][e]], edgeRanks[v][e], edgeLabels[v][e]));
+            edges.Sort((a, b) => a.Position != b.Position ? a.Position.CompareTo(b.Position) : a.Rank.CompareTo(b.Rank));
+            WriteInt(edges.Count);
+            foreach (var edge in edges)
             {
-                var bytes = Encoding.UTF8.GetBytes(atom);
-                AddInt(buffer, bytes.Length);
-                buffer.AddRange(bytes);
-            }
-            var mapped = inputs[v].Select(u => position[u]).Order().ToArray();
-            AddInt(buffer, mapped.Length);
-            foreach (var p in mapped) AddInt(buffer, p);
-            if (buffer.Count > 1 << 16)
-            {
-                hash.AppendData([.. buffer]);
-                buffer.Clear();
+                WriteInt(edge.Position);
+                WriteAtoms(edge.Label);
             }
         }
-        hash.AppendData([.. buffer]);
-        return hash.GetHashAndReset();
+        return SHA256.HashData(_buffer.WrittenSpan);
     }
 
-    private static void AddInt(List<byte> buffer, int value)
+    private void WriteAtoms(int[] atoms)
     {
-        buffer.Add((byte)value);
-        buffer.Add((byte)(value >> 8));
-        buffer.Add((byte)(value >> 16));
-        buffer.Add((byte)(value >> 24));
+        WriteInt(atoms.Length);
+        foreach (var atom in atoms)
+        {
+            var bytes = AtomBytes(atom);
+            WriteInt(bytes.Length);
+            _buffer.Write(bytes);
+        }
+    }
+
+    private byte[] AtomBytes(int atom)
+    {
+        while (_atomBytes.Count <= atom) _atomBytes.Add(Encoding.UTF8.GetBytes(_atoms[_atomBytes.Count]));
+        return _atomBytes[atom];
+    }
+
+    private void WriteInt(int value)
+    {
+        BinaryPrimitives.WriteInt32LittleEndian(_buffer.GetSpan(4), value);
+        _buffer.Advance(4);
     }
 }
