@@ -186,6 +186,9 @@ internal sealed class NetworkReducer
                 if (u == s) edgesFromS++;
                 else if (_mark[u] != stamp)
                 {
+                    // A consumer after t lies outside: no region (checked early, it is the common case).
+                    for (var k = _consumerStart[u]; k < _consumerStart[u + 1]; k++)
+                        if (Resolve(_consumerList[k]) > t) return;
                     _mark[u] = stamp;
                     region.Add(u);
                 }

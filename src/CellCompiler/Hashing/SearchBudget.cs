@@ -9,11 +9,15 @@ namespace CellCompiler.Hashing;
 /// </summary>
 public sealed class SearchBudget(long units = SearchBudget.DefaultUnits)
 {
-    public const long DefaultUnits = 50_000_000;
+    public const long DefaultUnits = 10_000_000;
 
+    private readonly long _units = units;
     private long _remaining = units;
 
     public bool Exhausted => _remaining <= 0;
+
+    /// <summary>Work done so far, for measurements.</summary>
+    public long Spent => _units - _remaining;
 
     public void Spend(long work) => _remaining -= work;
 }
