@@ -1,3 +1,5 @@
+using CellCompiler.Input;
+
 namespace CellCompiler.Hashing;
 
 /// <summary>
@@ -22,9 +24,9 @@ public sealed class BuiltinPrimitiveExpander : IPrimitiveExpander
 
     public int Expand(LayerGraph graph, string op, int input) => op switch
     {
-        Input.Primitives.Identity => input,
-        Input.Primitives.Conv1x1 or Input.Primitives.Conv3x3 or Input.Primitives.DwConv3x3 or Input.Primitives.SepConv3x3
-            or Input.Primitives.MaxPool3x3 or Input.Primitives.AvgPool3x3 => graph.AddLayer(op, input),
+        Primitives.Identity => input,
+        Primitives.Conv1x1 or Primitives.Conv3x3 or Primitives.DwConv3x3 or Primitives.SepConv3x3
+            or Primitives.MaxPool3x3 or Primitives.AvgPool3x3 => graph.AddLayer(op, input),
         _ => throw new InvalidOperationException($"primitive '{op}' has no expansion for the hash"),
     };
 }
