@@ -16,8 +16,8 @@ public static class Compiler
 {
     /// <exception cref="DeadCellException">the cell's output does not depend on its input</exception>
     /// <exception cref="CompileException">the network cannot be formed or would be too large</exception>
-    /// <param name="hash">The genotype's hash when the caller has it already (hashing can be the costly part for symmetric motifs).</param>
-    public static CompiledModel Compile(Genotype genotype, Skeleton skeleton, CompileOptions? options = null, string? hash = null)
+    /// <param name="hashes">The genotype's hashes when the caller has them already for this skeleton's merge mode (hashing can be the costly part for symmetric motifs).</param>
+    public static CompiledModel Compile(Genotype genotype, Skeleton skeleton, CompileOptions? options = null, GenotypeHashes? hashes = null)
     {
         options ??= CompileOptions.Default;
         if (options.Opset is < OnnxVersions.MinOpset or > OnnxVersions.MaxOpset)
@@ -31,7 +31,8 @@ public static class Compiler
                 $"exceeds the limit of {Limits.MaxExpandedPrimitiveOps:N0} primitive ops");
 
         var liveness = Liveness.Analyse(genotype);
-        hash ??= GenotypeHasher.Hash(genotype, liveness);
+        if (hashes is null || hashes.Merge != skeleton.Merge)
+            hashes = GenotypeHasher.Hashes(genotype, liveness, skeleton.Merge);
         var network = Lowerer.Lower(genotype, skeleton, liveness, options.Opset);
         var shaped = ShapeInference.Infer(network);
         var figures = FigureCounter.Count(shaped);
@@ -42,11 +43,12 @@ public static class Compiler
         var metadata = new List<KeyValuePair<string, string>>
         {
             new("genotype_name", genotype.Name),
-            new("genotype_hash", hash),
+            new("genotype_hash", hashes.Hash),
+            new("network_hash", hashes.NetworkHash),
             new("skeleton", skeleton.ToJson()),
             new("seed", options.Seed.ToString(System.Globalization.CultureInfo.InvariantCulture)),
         };
         var bytes = OnnxEmitter.Emit(shaped, new EmitOptions(options.Seed, options.Opset, genotype.Name, metadata));
-        return new CompiledModel(genotype.Name, hash, skeleton, options, shaped, figures, network.Warnings, bytes);
+        return new CompiledModel(genotype.Name, hashes.Hash, hashes.NetworkHash, skeleton, options, shaped, figures, network.Warnings, bytes);
     }
 }

@@ -51,9 +51,9 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             return Failed(candidate, null, CheckStatus.Invalid, candidate.Error!.OneLine, "invalid: " + Kind(candidate.Error.Problem), [], clock);
 
         // Everything but the latency measurement is shared work; the measurement waits until none runs.
-        var (hash, warnings, notes, evaluation, cached, model, latencyKey) = _gate.Shared(() => Prepare(genotype));
+        var (hashes, warnings, notes, evaluation, cached, model, latencyKey) = _gate.Shared(() => Prepare(genotype));
         if (!evaluation.Works)
-            return Failed(candidate, hash, evaluation.Failure!.Value, evaluation.FailureReason!, evaluation.FailureKind, warnings, clock, cached) with { Notes = notes };
+            return Failed(candidate, hashes, evaluation.Failure!.Value, evaluation.FailureReason!, evaluation.FailureKind, warnings, clock, cached) with { Notes = notes };
 
         var figures = evaluation.Figures!;
         var trainMemory = TrainMemory(evaluation);
@@ -71,7 +71,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
                 }
                 catch (Exception e) when (e is not OutOfMemoryException)
                 {
-                    return Failed(candidate, hash, CheckStatus.Broken,
+                    return Failed(candidate, hashes, CheckStatus.Broken,
                         $"latency measurement failed: {e.Message.ReplaceLineEndings(" ")}", "latency measurement failed", warnings, clock);
                 }
                 cache?.StoreLatency(latencyKey, latency);
@@ -91,7 +91,8 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         {
             Id = candidate.Id,
             Name = genotype.Name,
-            Hash = hash,
+            Hash = hashes.Hash,
+            NetworkHash = hashes.NetworkHash,
             Status = status,
             Reason = reason,
             ReasonKind = kind,
@@ -114,7 +115,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         };
     }
 
-    private sealed record Prepared(string Hash, IReadOnlyList<string> Warnings, IReadOnlyList<string> Notes, Evaluation Evaluation, bool Cached, byte[]? Model, string? LatencyKey);
+    private sealed record Prepared(GenotypeHashes Hashes, IReadOnlyList<string> Warnings, IReadOnlyList<string> Notes, Evaluation Evaluation, bool Cached, byte[]? Model, string? LatencyKey);
 
     /// <summary>The candidate's `meta` object as written (the reader kept it as compact JSON text).</summary>
     private static JsonElement? MetaOf(Candidate candidate)
@@ -131,11 +132,13 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     private Prepared Prepare(Genotype genotype)
     {
         var liveness = Liveness.Analyse(genotype);
-        var hash = GenotypeHasher.Hash(genotype, liveness);
+        var hashes = GenotypeHasher.Hashes(genotype, liveness, options.Skeleton.Merge);
         var warnings = Lowerer.Warnings(genotype, liveness);
         IReadOnlyList<string> notes = liveness.Cell(genotype).OutputIsLive && !Lowerer.HasTrainableOp(genotype, liveness)
             ? [Lowerer.TrivialCellNote] : [];
-        var key = $"{hash}|{_settingsKey}";
+        // The network hash is the key: the settings hold the skeleton and so its merge mode, and under
+        // sum merges genotypes that differ only by nesting of sums are the same network.
+        var key = $"{hashes.NetworkHash}|{_settingsKey}";
 
         byte[]? model = null;
         var evaluation = cache?.FindEvaluation(key);
@@ -144,7 +147,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         if (evaluation is null || (!evaluation.SmokeTested && WouldRun(evaluation)))
         {
             cached = false;
-            (evaluation, model) = Evaluate(genotype, hash);
+            (evaluation, model) = Evaluate(genotype, hashes);
             // Only networks that compiled are cached: a compile failure's reason names this spelling's
             // own JSON paths (every dead cell has the same hash), and finding it again is cheap.
             if (evaluation.Figures is not null) cache?.StoreEvaluation(key, evaluation);
@@ -157,10 +160,10 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             if (cache?.FindLatency(latencyKey) is null && model is null)
             {
                 using var reservation = _memory.Reserve(CompileEstimate(genotype));
-                model = Compiler.Compile(genotype, options.Skeleton, options.Compile, hash).OnnxBytes;
+                model = Compiler.Compile(genotype, options.Skeleton, options.Compile, hashes).OnnxBytes;
             }
         }
-        return new Prepared(hash, warnings, notes, evaluation, cached, model, latencyKey);
+        return new Prepared(hashes, warnings, notes, evaluation, cached, model, latencyKey);
     }
 
     private long TrainMemory(Evaluation evaluation) =>
@@ -205,14 +208,14 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     private static string Gigabytes(long bytes) => Significant(bytes / 1e9);
 
     /// <summary>Compile and smoke-test: the cacheable part of a check.</summary>
-    private (Evaluation, byte[]?) Evaluate(Genotype genotype, string hash)
+    private (Evaluation, byte[]?) Evaluate(Genotype genotype, GenotypeHashes hashes)
     {
         CompiledModel model;
         using (var reservation = _memory.Reserve(CompileEstimate(genotype)))
         {
             try
             {
-                model = Compiler.Compile(genotype, options.Skeleton, options.Compile, hash);
+                model = Compiler.Compile(genotype, options.Skeleton, options.Compile, hashes);
             }
             catch (DeadCellException dead)
             {
@@ -247,12 +250,13 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     private static string LatencyKey(LatencySettings s) =>
         $"cpu={MachineInfo.Processor}|ort={MachineInfo.RuntimeVersion}|threads={s.Threads}|batches={string.Join(",", s.BatchSizes)}|warmup={s.Warmup}|runs={s.Runs}|min={s.MinSeconds}";
 
-    private static CheckRecord Failed(Candidate candidate, string? hash, CheckStatus status, string reason, string? kind,
+    private static CheckRecord Failed(Candidate candidate, GenotypeHashes? hashes, CheckStatus status, string reason, string? kind,
         IReadOnlyList<string> warnings, Stopwatch clock, bool cached = false) => new()
     {
         Id = candidate.Id,
         Name = candidate.Genotype?.Name,
-        Hash = hash,
+        Hash = hashes?.Hash,
+        NetworkHash = hashes?.NetworkHash,
         Status = status,
         Reason = reason,
         ReasonKind = kind,

@@ -16,6 +16,9 @@ public sealed record CheckRecord
     public required string Id { get; init; }
     public string? Name { get; init; }
     public string? Hash { get; init; }
+
+    /// <summary>The network's hash under the skeleton's merge mode (contract section 4): a population is deduplicated by it.</summary>
+    public string? NetworkHash { get; init; }
     public required CheckStatus Status { get; init; }
     public string? Reason { get; init; }
     public string? ReasonKind { get; init; }
