@@ -52,7 +52,7 @@ public sealed class InspectFuzzTests(ITestOutputHelper output)
             {
                 refused++;
                 // Tallied by the message without the file name and numbers, to show what kinds of refusal the corpus reaches.
-                var kind = System.Text.RegularExpressions.Regex.Replace(outcome.Message[(path.Length + 2)..], "[0-9,]+", "N");
+                var kind = System.Text.RegularExpressions.Regex.Replace(outcome.Message[(path.Length + 2)..], "[0-9][0-9,]*", "N");
                 refusals[kind] = refusals.GetValueOrDefault(kind) + 1;
             }
             else failures.Add($"{description}: {outcome.Failure}");

@@ -70,7 +70,7 @@ public static class ModelInspector
         if (external > 0)
             notes.Add($"{Plural(external, "initializer keeps its", "initializers keep their")} data in external files; elements are counted from the dims");
         if (constants > 0)
-            notes.Add($"{constants.ToString("N0", CultureInfo.InvariantCulture)} elements of int64/bool initializers (shapes, axes, indices) are not counted as params");
+            notes.Add($"{Plural(constants, "element", "elements")} of int64/bool initializers (shapes, axes, indices) {(constants == 1 ? "is" : "are")} not counted as params");
         if (initializersAsInputs > 0)
             notes.Add($"{Plural(initializersAsInputs, "initializer is", "initializers are")} also listed as graph inputs (defaults a caller may override), not shown as inputs");
         if (subgraphNodes > 0)
