@@ -10,6 +10,9 @@ namespace CellCompiler.Inspection;
 /// no protobuf: /dev/zero fails at once) instead of loading the whole input first; unknown fields
 /// are dropped rather than kept; nesting deeper than the protobuf library's recursion limit (100)
 /// is refused. Every failure is an <see cref="InputException"/> naming the source.
+/// Why not a reader that loads the bytes first (bounded, then parsed): a model may be up to 2 GiB,
+/// so an endless pipe would cost 2 GiB and more before being refused; parsing while reading
+/// stopped `&lt;(yes ' ')` at the limit with a 32 MiB peak (README, "Hostile model files").
 /// </summary>
 internal static class ModelFileReader
 {
