@@ -30,6 +30,18 @@ public sealed class HashExactnessTests(ITestOutputHelper output)
         ("hier3-motifs", HashSpaces.Hierarchical(3, ["none", "identity", "chain", "pass", "single", "res"])),
         ("hier4-twins", HashSpaces.Hierarchical(4, ["none", "pass", "single", "chain"])),
         ("twins", HashSpaces.Twins()),
+        // Declared primitives whose layers coincide with other spellings: a sepconv of two rounds is
+        // two chained sepconvs; an mbconv with expand 1 and no squeeze-excitation is a dwconv followed
+        // by a 1x1 conv without activation.
+        ("flat3-repeat", HashSpaces.FlatDeclared(3,
+            """{"s1":{"kind":"sepconv","kernel":3},"s2":{"kind":"sepconv","kernel":3,"repeat":2},"w":{"kind":"sepconv","kernel":5,"act":"silu"}}""",
+            ["none", "identity", "s1", "s2", "w"])),
+        ("flat3-bottleneck", HashSpaces.FlatDeclared(3,
+            """{"mb":{"kind":"mbconv","kernel":3,"expand":1},"lin":{"kind":"conv","kernel":1,"act":"none"},"gate":{"kind":"mbconv","kernel":3,"expand":2,"se":0.5,"act":"hardswish"}}""",
+            ["none", "identity", "dwconv3x3", "mb", "lin", "gate"])),
+        ("flat4-declared", HashSpaces.FlatDeclared(4,
+            """{"fz":{"kind":"factorized","kernel":3},"p5":{"kind":"maxpool","kernel":5},"r6":{"kind":"conv","kernel":3,"act":"relu6"}}""",
+            ["none", "identity", "fz", "p5"])),
         ("random-flattened", HashSpaces.RandomWithFlattened(seeds: 150)),
     ];
 

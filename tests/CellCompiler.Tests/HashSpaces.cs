@@ -23,6 +23,11 @@ internal static class HashSpaces
     public static IEnumerable<string> Flat(int nodes, IReadOnlyList<string> ops) =>
         Assignments(nodes, ops).Select(edges => Document(Cell(nodes, edges)));
 
+    /// <summary>Every flat cell of <paramref name="nodes"/> nodes over <paramref name="ops"/>, with declared primitives (contract 3.1).</summary>
+    public static IEnumerable<string> FlatDeclared(int nodes, string primitives, IReadOnlyList<string> ops) =>
+        Assignments(nodes, ops).Select(edges =>
+            "{\"format\":\"genotype/1\",\"primitives\":" + primitives.ReplaceLineEndings("") + ",\"levels\":[" + Cell(nodes, edges) + "]}");
+
     /// <summary>Two levels: the fixed level-0 motifs, and every cell of <paramref name="nodes"/> nodes over <paramref name="ops"/>.</summary>
     public static IEnumerable<string> Hierarchical(int nodes, IReadOnlyList<string> ops) =>
         Assignments(nodes, ops).Select(edges =>
