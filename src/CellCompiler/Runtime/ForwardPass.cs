@@ -16,13 +16,17 @@ public sealed class ForwardPass : IDisposable
 {
     private readonly InferenceSession _session;
 
-    public ForwardPass(byte[] model, int intraOpThreads = 1)
+    /// <param name="optimize">
+    /// False runs the graph as written, op by op, without ONNX Runtime's fusions and layout changes
+    /// (whose float32 rounding differs): a reference evaluation to compare other engines against.
+    /// </param>
+    public ForwardPass(byte[] model, int intraOpThreads = 1, bool optimize = true)
     {
         using var options = new SessionOptions
         {
             IntraOpNumThreads = intraOpThreads,
             InterOpNumThreads = 1,
-            GraphOptimizationLevel = GraphOptimizationLevel.ORT_ENABLE_ALL,
+            GraphOptimizationLevel = optimize ? GraphOptimizationLevel.ORT_ENABLE_ALL : GraphOptimizationLevel.ORT_DISABLE_ALL,
             LogSeverityLevel = OrtLoggingLevel.ORT_LOGGING_LEVEL_ERROR,
         };
         _session = new InferenceSession(model, options);
