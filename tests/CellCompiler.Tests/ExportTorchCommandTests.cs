@@ -217,6 +217,25 @@ public sealed class ExportTorchCommandTests
     }
 
     [Fact]
+    public void Names_with_quotes_and_backslashes_stay_data_in_the_python_file()
+    {
+        using var folder = new TempFolder();
+        var genotype = folder.Write("odd.json", """
+            { "format": "genotype/1", "name": "tide \"pool\" \\ \u00e9t\u00e9 '''",
+              "meta": { "why": "a \"quoted\" note" },
+              "levels": [ { "nodes": 2, "motifs": { "cell": { "edges": [[0, 1, "conv3x3"]] } } } ] }
+            """);
+        var module = Export(folder, genotype, "odd");
+        // Run the file as Python (its main block does not run under runpy) and read its constants back.
+        var result = ProcessRunner.Run(PythonReference.Python,
+            ["-c", "import json, runpy, sys; g = runpy.run_path(sys.argv[1]); print(json.dumps([g['GENOTYPE_NAME'], json.loads(g['GENOTYPE'])]))", module]);
+        Assert.True(result.ExitCode == 0, result.Stderr);
+        using var answer = JsonDocument.Parse(result.Stdout);
+        Assert.Equal("tide \"pool\" \\ \u00e9t\u00e9 '''", answer.RootElement[0].GetString());
+        Assert.Equal("a \"quoted\" note", answer.RootElement[1].GetProperty("meta").GetProperty("why").GetString());
+    }
+
+    [Fact]
     public void Module_paths_follow_node_names_both_ways()
     {
         // The rule the generated loader applies (module_path in the file) and the README states.

@@ -45,6 +45,10 @@ public static class Compiler
             new("genotype_hash", hash),
             new("skeleton", skeleton.ToJson()),
             new("seed", options.Seed.ToString(System.Globalization.CultureInfo.InvariantCulture)),
+            // With the skeleton, the seed and the opset, enough to compile the same bytes again from the file alone.
+            new("genotype", GenotypeJson.Serialize(genotype)),
+            new("cellc_version", BuildInfo.Version),
+            new("cellc_commit", BuildInfo.Commit),
         };
         var bytes = OnnxEmitter.Emit(shaped, new EmitOptions(options.Seed, options.Opset, genotype.Name, metadata));
         return new CompiledModel(genotype.Name, hash, skeleton, options, shaped, figures, network.Warnings, bytes);
