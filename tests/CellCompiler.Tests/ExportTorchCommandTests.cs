@@ -236,6 +236,31 @@ public sealed class ExportTorchCommandTests
     }
 
     [Fact]
+    public void The_readme_example_runs_as_written()
+    {
+        var readme = File.ReadAllText(Path.Combine(RepoPaths.Root, "README.md"));
+        var section = readme[readme.IndexOf("### `cellc export-torch`", StringComparison.Ordinal)..];
+        string Block(string language)
+        {
+            var start = section.IndexOf($"```{language}\n", StringComparison.Ordinal) + language.Length + 4;
+            return section[start..section.IndexOf("```", start, StringComparison.Ordinal)];
+        }
+        using var folder = new TempFolder();
+        foreach (var line in Block("sh").Split('\n', StringSplitOptions.RemoveEmptyEntries))
+        {
+            var words = line.Split(' ', StringSplitOptions.RemoveEmptyEntries);
+            Assert.Equal("cellc", words[0]);
+            var args = words.Skip(1).Select(w => w.StartsWith("fixtures/", StringComparison.Ordinal) ? Path.Combine(RepoPaths.Root, w) : w);
+            var result = ProcessRunner.Cellc(args, null, folder.Path);
+            Assert.True(result.ExitCode == 0, $"{line}\n{result.Stderr}");
+        }
+        var script = folder.Write("readme_example.py", Block("python") + "assert tuple(logits.shape) == (8, vocab.CLASSES)\nprint('ok')\n");
+        var run = ProcessRunner.Run(PythonReference.Python, [script], workingDirectory: folder.Path);
+        Assert.True(run.ExitCode == 0, run.Stderr);
+        Assert.Equal("ok", run.Stdout.Trim());
+    }
+
+    [Fact]
     public void Module_paths_follow_node_names_both_ways()
     {
         // The rule the generated loader applies (module_path in the file) and the README states.

@@ -63,4 +63,16 @@ public sealed class SearchLoopExampleTests
             Assert.True(compiled.ExitCode == 0, compiled.Stderr);
         }
     }
+
+    [Fact]
+    public void The_readme_shows_the_examples_screen_function_word_for_word()
+    {
+        var readme = File.ReadAllText(Path.Combine(RepoPaths.Root, "README.md"));
+        var section = readme[readme.IndexOf("### Driving `cellc check` from Python", StringComparison.Ordinal)..];
+        var start = section.IndexOf("```python\n", StringComparison.Ordinal) + "```python\n".Length;
+        var block = section[start..section.IndexOf("```", start, StringComparison.Ordinal)];
+        Assert.StartsWith("def screen(", block);
+        var example = File.ReadAllText(Path.Combine(RepoPaths.Root, "examples", "search_loop.py"));
+        Assert.Contains(block, example);
+    }
 }
