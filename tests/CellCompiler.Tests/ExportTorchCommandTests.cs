@@ -232,7 +232,7 @@ public sealed class ExportTorchCommandTests
         Assert.True(result.ExitCode == 0, result.Stderr);
         using var answer = JsonDocument.Parse(result.Stdout);
         Assert.Equal("tide \"pool\" \\ \u00e9t\u00e9 '''", answer.RootElement[0].GetString());
-        Assert.Equal("a \"quoted\" note", answer.RootElement[1].GetProperty("meta").GetProperty("why").GetString());
+        Assert.Equal("tide \"pool\" \\ \u00e9t\u00e9 '''", answer.RootElement[1].GetProperty("name").GetString());
     }
 
     [Fact]

@@ -92,7 +92,7 @@ public static class TorchExporter
         Constant(source, "CELLC_COMMIT", PyText.Str(BuildInfo.Commit));
         Constant(source, "GENOTYPE_NAME", PyText.Str(genotype.Name));
         Constant(source, "GENOTYPE_HASH", PyText.Str(model.Hash));
-        Constant(source, "GENOTYPE", PyText.Str(GenotypeJson.Serialize(genotype)), "genotype/1, as in the ONNX metadata");
+        Constant(source, "GENOTYPE", PyText.Str(Compiler.RecordedGenotype(genotype)), "genotype/1, as in the ONNX metadata");
         Constant(source, "SKELETON", PyText.Str(skeleton.ToJson()), "skeleton/1, as in the ONNX metadata");
         Constant(source, "SEED", PyText.Int(model.Options.Seed), "the seed of the compile this file was written with (weights of any seed load)");
         Constant(source, "OPSET", PyText.Int(model.Options.Opset));
