@@ -1,11 +1,12 @@
 using System.Text.Json;
 using CellCompiler.Input;
 using CellCompiler.Tests.Support;
+using Xunit.Abstractions;
 
 namespace CellCompiler.Tests;
 
 /// <summary>Every fixture genotype on every preset and on the fixture skeleton, against the outside references.</summary>
-public sealed class ReferenceFixtureTests
+public sealed class ReferenceFixtureTests(ITestOutputHelper output)
 {
     /// <summary>Every genotype/1 file of fixtures/ (the skeleton and the population are not genotypes).</summary>
     public static IReadOnlyList<string> GenotypeFixtures()
@@ -39,6 +40,7 @@ public sealed class ReferenceFixtureTests
                      select new ReferenceCase($"{Path.GetFileNameWithoutExtension(file)}-{s.Label}",
                          File.ReadAllText(file), s.Skeleton, s.Opset)).ToList();
         var coverage = ReferenceBatch.Check(cases);
+        output.WriteLine(coverage.Summary);
         // OpenCV loads every fixture model whose ops OpenCV 4.6 reads at all (OpencvCoverage).
         var beyondOpencv = cases.Where(c => OpencvCoverage.Unsupported(c.GenotypeJson) is not null).Select(c => c.Id).ToHashSet();
         Assert.Equal(coverage.ModelIds.Where(id => !beyondOpencv.Contains(id)), coverage.OpencvIds);

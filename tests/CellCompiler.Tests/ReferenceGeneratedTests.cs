@@ -1,6 +1,7 @@
 using CellCompiler.Input;
 using CellCompiler.Lowering;
 using CellCompiler.Tests.Support;
+using Xunit.Abstractions;
 
 namespace CellCompiler.Tests;
 
@@ -10,7 +11,7 @@ namespace CellCompiler.Tests;
 /// rebuild (figures, op counts, node names, weights and logits) and OpenCV's DNN module (logits).
 /// One class per preset so they run in parallel.
 /// </summary>
-public abstract class ReferenceGeneratedTests(string preset, int firstSeed, int count, int maxConvs, int maxLevels, int maxNodes)
+public abstract class ReferenceGeneratedTests(ITestOutputHelper output, string preset, int firstSeed, int count, int maxConvs, int maxLevels, int maxNodes)
 {
     [Fact]
     public void GeneratedGenotypesMatchOnnxCheckerRuntimePyTorchAndOpencv()
@@ -18,6 +19,7 @@ public abstract class ReferenceGeneratedTests(string preset, int firstSeed, int 
         var cases = ReferenceCases.Generated(preset, firstSeed, count, maxConvs,
             seed => RandomGenotypes.Json(seed, maxLevels, maxNodes));
         var coverage = ReferenceBatch.Check(cases);
+        output.WriteLine(coverage.Summary);
         Assert.True(coverage.Models >= count, $"{coverage.Models} live models");
         // Built-in primitives only: OpenCV reads every one of them.
         Assert.Equal(coverage.Models, coverage.OpencvModels);
@@ -28,9 +30,9 @@ public abstract class ReferenceGeneratedTests(string preset, int firstSeed, int 
 }
 
 // OpenCV runs on all of them: 100 + 40 + 12 generated networks over the three presets.
-public sealed class ReferenceGeneratedProxyTests() : ReferenceGeneratedTests("proxy", 1000, 100, 80, 3, 6);
-public sealed class ReferenceGeneratedFullTests() : ReferenceGeneratedTests("full", 2000, 40, 25, 3, 5);
-public sealed class ReferenceGeneratedFull224Tests() : ReferenceGeneratedTests("full224", 3000, 12, 16, 3, 4);
+public sealed class ReferenceGeneratedProxyTests(ITestOutputHelper output) : ReferenceGeneratedTests(output, "proxy", 1000, 100, 80, 3, 6);
+public sealed class ReferenceGeneratedFullTests(ITestOutputHelper output) : ReferenceGeneratedTests(output, "full", 2000, 40, 25, 3, 5);
+public sealed class ReferenceGeneratedFull224Tests(ITestOutputHelper output) : ReferenceGeneratedTests(output, "full224", 3000, 12, 16, 3, 4);
 
 /// <summary>Builds batches of generated reference cases.</summary>
 public static class ReferenceCases
