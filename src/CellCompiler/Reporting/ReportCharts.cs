@@ -121,7 +121,7 @@ public static class ReportCharts
         Y = type == LineAnnotationType.Horizontal ? value : 0,
         Color = ChartSvg.Color(Ink.Budget),
         StrokeThickness = 1.4,
-        LineStyle = LineStyle.Dash,
+        LineStyle = LineStyle.LongDash,
         Text = labelled ? $"{measure.BudgetOption} {measure.Show(value)}" : "",
         TextColor = ChartSvg.Color(Ink.Budget),
         FontSize = 11,

@@ -51,7 +51,8 @@ public sealed record ResultRow(
             r.Status == CheckStatus.Ok ? null : r.ReasonKind ?? r.Status.Name(),
             r.Params, r.Macs, r.PeakActivationBytes, r.TrainMemoryBytes, r.OnnxBytes, r.LatencyMs, r.Cached)
         {
-            Trivial = r.Notes.Contains(Lowerer.TrivialCellNote, StringComparer.Ordinal),
+            // Records written without notes read with none (older files).
+            Trivial = (r.Notes ?? []).Contains(Lowerer.TrivialCellNote, StringComparer.Ordinal),
             Budgets = r.Budgets,
             HasScores = metrics is not null,
             Objectives = objectives.Select(o => metrics is not null && metrics.TryGetValue(o.Name, out var v) ? v : MetaNumber(r.Meta, o.Name)).ToList(),
