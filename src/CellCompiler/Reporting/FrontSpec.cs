@@ -12,6 +12,7 @@ namespace CellCompiler.Reporting;
 public sealed class FrontSpec(string key, string title, Measure x, Measure y)
 {
     private readonly ParetoFront _front = new();
+    private IReadOnlyList<FrontMember>? _members;
 
     /// <summary>Names the front in the page (`data-front`), e.g. "params-macs".</summary>
     public string Key { get; } = key;
@@ -25,13 +26,14 @@ public sealed class FrontSpec(string key, string title, Measure x, Measure y)
         var (x, y) = (X.Of(point), Y.Of(point));
         if (double.IsNaN(x) || double.IsNaN(y)) return;
         _front.Add(id, x, Y.Maximise ? -y : y);
+        _members = null;
     }
 
     /// <summary>The front, in order of X (least first), with Y as the candidates have it.</summary>
     public IReadOnlyList<FrontMember> Members =>
-        _front.Points.Select(p => new FrontMember(p.Id, p.X, Y.Maximise ? -p.Y : p.Y, p.Ties)).ToList();
+        _members ??= _front.Points.Select(p => new FrontMember(p.Id, p.X, Y.Maximise ? -p.Y : p.Y, p.Ties)).ToList();
 
-    public int Count => _front.Points.Count;
+    public int Count => Members.Count;
 }
 
 /// <summary>A candidate on a front, with its two figures and how many others have exactly the same figures.</summary>
