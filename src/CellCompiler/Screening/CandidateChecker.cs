@@ -112,8 +112,12 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             Cached = cached,
             CheckMs = Math.Round(clock.Elapsed.TotalMilliseconds, 4),
             Meta = MetaOf(candidate),
+            Budgets = RecordedBudgets,
         };
     }
+
+    /// <summary>The run's budgets as records carry them: null when none was set.</summary>
+    private Budgets? RecordedBudgets => options.Budgets == Budgets.None ? null : options.Budgets;
 
     private sealed record Prepared(GenotypeHashes Hashes, IReadOnlyList<string> Warnings, IReadOnlyList<string> Notes, Evaluation Evaluation, bool Cached, byte[]? Model, string? LatencyKey);
 
@@ -250,7 +254,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     private static string LatencyKey(LatencySettings s) =>
         $"cpu={MachineInfo.Processor}|ort={MachineInfo.RuntimeVersion}|threads={s.Threads}|batches={string.Join(",", s.BatchSizes)}|warmup={s.Warmup}|runs={s.Runs}|min={s.MinSeconds}";
 
-    private static CheckRecord Failed(Candidate candidate, GenotypeHashes? hashes, CheckStatus status, string reason, string? kind,
+    private CheckRecord Failed(Candidate candidate, GenotypeHashes? hashes, CheckStatus status, string reason, string? kind,
         IReadOnlyList<string> warnings, Stopwatch clock, bool cached = false) => new()
     {
         Id = candidate.Id,
@@ -264,6 +268,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         Cached = cached,
         CheckMs = Math.Round(clock.Elapsed.TotalMilliseconds, 4),
         Meta = MetaOf(candidate),
+        Budgets = RecordedBudgets,
     };
 
     /// <summary>The record of a candidate whose check failed in a way this tool did not foresee (a bug).</summary>
