@@ -1,11 +1,18 @@
 using BenchmarkDotNet.Attributes;
 using CellCompiler.Hashing;
 using CellCompiler.Input;
+using CellCompiler.Lowering;
 using CellCompiler.Sampling;
+using CellCompiler.Tests;
 
 namespace CellCompiler.Bench;
 
-/// <summary>Canonical hashing of 11-node flat cells (target: well under 10 ms per genotype).</summary>
+/// <summary>
+/// Canonical hashing. Sampled 11-node flat cells (the everyday case; target: at most 2x the 58 us
+/// per cell measured before the hash became exact) and the worst cases of
+/// tests/CellCompiler.Tests/HashStressGenotypes.cs, symmetric genotypes at the contract's limits
+/// (target: under 1 s each), under both merge modes.
+/// </summary>
 [MemoryDiagnoser]
 [MedianColumn]
 [SimpleJob(warmupCount: 3, iterationCount: 10)]
@@ -26,4 +33,31 @@ public class HashBenchmarks
 
     [Benchmark(Description = "fixture tidepool-flat11")]
     public string Fixture() => GenotypeHasher.Hash(_fixture);
+}
+
+/// <summary>One symmetric worst case per run, liveness included (it is part of hashing a parsed genotype).</summary>
+[MemoryDiagnoser]
+[MedianColumn]
+[SimpleJob(warmupCount: 2, iterationCount: 8)]
+public class HashStressBenchmarks
+{
+    private Genotype _genotype = null!;
+
+    public static IEnumerable<string> Names => HashStressGenotypes.All().Select(c => c.Name);
+
+    [ParamsSource(nameof(Names))]
+    public string Case { get; set; } = "";
+
+    [Params(MergeMode.Concat, MergeMode.Sum)]
+    public MergeMode Merge { get; set; }
+
+    [GlobalSetup]
+    public void Setup()
+    {
+        var json = HashStressGenotypes.All().Single(c => c.Name == Case).Json;
+        _genotype = GenotypeReader.Parse(json, Case, Case);
+    }
+
+    [Benchmark(Description = "symmetric worst case")]
+    public string Stress() => GenotypeHasher.NetworkHash(_genotype, Liveness.Analyse(_genotype), Merge);
 }

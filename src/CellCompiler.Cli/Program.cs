@@ -2,19 +2,25 @@ using System.CommandLine;
 using CellCompiler.Cli;
 using CellCompiler.Cli.Commands;
 
-var root = new RootCommand(
+// Every command, by name. A call builds only what it needs (see CommandSet): building all of them,
+// with their options and descriptions, is start-up time that a search loop calling `cellc compile`
+// once per candidate would pay on every call.
+var commands = new CommandSet(
     "cellc: lowers hierarchical cell genotypes to ONNX models and reports what they cost.\n" +
-    "Exit codes: 0 all is well; 1 the work ran but a candidate failed (e.g. a dead cell); 2 bad input or command line.");
-root.Subcommands.Add(CompileCommand.Create());
-root.Subcommands.Add(CheckCommand.Create());
-root.Subcommands.Add(BenchCommand.Create());
-root.Subcommands.Add(CalibrateCommand.Create());
-root.Subcommands.Add(MergeCommand.Create());
-root.Subcommands.Add(SampleCommand.Create());
-root.Subcommands.Add(ScaleCommand.Create());
-root.Subcommands.Add(RenderCommand.Create());
-root.Subcommands.Add(InspectCommand.Create());
-root.Subcommands.Add(ReportCommand.Create(CellCompiler.Rendering.CellRenderer.Svg));
-root.Subcommands.Add(DemoCommand.Create());
+    "Exit codes: 0 all is well; 1 the work ran but a candidate failed (e.g. a dead cell); 2 bad input or command line.",
+    [
+        ("compile", CompileCommand.Create),
+        ("export-torch", ExportTorchCommand.Create),
+        ("check", CheckCommand.Create),
+        ("bench", BenchCommand.Create),
+        ("calibrate", CalibrateCommand.Create),
+        ("merge", MergeCommand.Create),
+        ("sample", SampleCommand.Create),
+        ("scale", ScaleCommand.Create),
+        ("render", RenderCommand.Create),
+        ("inspect", InspectCommand.Create),
+        ("report", () => ReportCommand.Create(CellCompiler.Rendering.CellRenderer.Svg)),
+        ("demo", DemoCommand.Create),
+    ]);
 
-return CommandRunner.Run(root, args);
+return CommandRunner.Run(commands.RootFor(args), args);

@@ -12,7 +12,7 @@ namespace CellCompiler.Tests;
 /// operator specification (opset 17, IR 8), so that each one fails in exactly one known way.
 /// Every model takes `images` [N, 3, 4, 4] and is expected to give `logits` [N, 2].
 /// </summary>
-public sealed class SmokeTestTests
+public sealed partial class SmokeTestTests
 {
     private static readonly int[] SampleShape = [3, 4, 4];
     private static readonly int[] Logits = [2];

@@ -52,6 +52,10 @@ public static class CheckCommand
             Description = "Do not run candidates on ONNX Runtime: compile in memory (no weights, no ONNX bytes), figures, budgets and, " +
                           "with --latency-table, the prediction; ok then means \"compiles and fits\".",
         };
+        var runOverBudget = new Option<bool>("--run-over-budget")
+        {
+            Description = "Also run candidates already over a budget that needs no run (params, MACs, memory), so that their record says whether they work; by default they are compiled and counted but not run.",
+        };
         var skeleton = new SkeletonOptions();
         var settings = new CompileSettingsOptions();
         var budgets = new BudgetOptions();
@@ -63,7 +67,7 @@ public static class CheckCommand
             "Statuses: ok, over_budget, broken, invalid. Exit 0 if all are ok, 1 otherwise, 2 on a bad command line " +
             "or a bad single genotype file.");
         command.Arguments.Add(inputs);
-        foreach (var option in new Option[] { json, output, jobs, ordered, cachePath, noCache, resume, shard, latency, latencyTable, staticOnly, maxRunNodes, memoryLimit })
+        foreach (var option in new Option[] { json, output, jobs, ordered, cachePath, noCache, resume, shard, latency, latencyTable, staticOnly, maxRunNodes, memoryLimit, runOverBudget })
             command.Options.Add(option);
         skeleton.AddTo(command);
         settings.AddTo(command);
@@ -86,7 +90,7 @@ public static class CheckCommand
             {
                 Inputs = parse.GetValue(inputs)!,
                 Options = new CheckOptions(skeleton.Resolve(parse), settings.Resolve(parse), budget,
-                    parse.GetValue(budgets.TrainBatch), latencySettings, parse.GetValue(maxRunNodes))
+                    parse.GetValue(budgets.TrainBatch), latencySettings, parse.GetValue(maxRunNodes), parse.GetValue(runOverBudget))
                 {
                     LatencyTablePath = parse.GetValue(latencyTable),
                     PredictionThreads = requested.Threads,

@@ -13,6 +13,7 @@ public static class CompileReport
         writer.WriteStartObject();
         writer.WriteString("name", model.Name);
         writer.WriteString("hash", model.Hash);
+        writer.WriteString("network_hash", model.NetworkHash);
         writer.WritePropertyName("skeleton");
         model.Skeleton.WriteJson(writer);
         WriteShape(writer, "input_shape", model.InputShape.Dims);
@@ -49,7 +50,9 @@ public static class CompileReport
     public static void WriteText(TextWriter output, CompiledModel model, string? onnxPath)
     {
         var f = model.Figures;
-        output.WriteLine($"{model.Name}  hash {model.Hash[..16]}");
+        output.WriteLine(model.NetworkHash == model.Hash
+            ? $"{model.Name}  hash {model.Hash[..16]}"
+            : $"{model.Name}  hash {model.Hash[..16]}  network hash ({Input.Skeleton.MergeName(model.Skeleton.Merge)}) {model.NetworkHash[..16]}");
         output.WriteLine($"  skeleton     {DescribeSkeleton(model.Skeleton)}");
         output.WriteLine($"  input        images {model.InputShape}");
         output.WriteLine($"  output       logits {model.OutputShape}");

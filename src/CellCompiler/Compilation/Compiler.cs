@@ -16,27 +16,35 @@ public static class Compiler
 {
     /// <exception cref="DeadCellException">the cell's output does not depend on its input</exception>
     /// <exception cref="CompileException">the network cannot be formed or would be too large</exception>
-    /// <param name="hash">The genotype's hash when the caller has it already (hashing can be the costly part for symmetric motifs).</param>
-    public static CompiledModel Compile(Genotype genotype, Skeleton skeleton, CompileOptions? options = null, string? hash = null)
+    /// <param name="hashes">The genotype's hashes when the caller has them already for this skeleton's merge mode (hashing can be the costly part for symmetric motifs).</param>
+    public static CompiledModel Compile(Genotype genotype, Skeleton skeleton, CompileOptions? options = null, GenotypeHashes? hashes = null)
     {
-        var compiled = CompileFigures(genotype, skeleton, options, hash);
+        var compiled = CompileFigures(genotype, skeleton, options, hashes);
         options = compiled.Options;
+        hashes = compiled.Hashes;
         var metadata = new List<KeyValuePair<string, string>>
         {
             new("genotype_name", genotype.Name),
-            new("genotype_hash", compiled.Hash),
+            new("genotype_hash", hashes.Hash),
+            new("network_hash", hashes.NetworkHash),
             new("skeleton", skeleton.ToJson()),
             new("seed", options.Seed.ToString(System.Globalization.CultureInfo.InvariantCulture)),
+            // With the skeleton, the seed and the opset, enough to compile the same bytes again from the file alone.
+            new("genotype", RecordedGenotype(genotype)),
+            new("cellc_version", BuildInfo.Version),
+            new("cellc_commit", BuildInfo.Commit),
         };
         var bytes = OnnxEmitter.Emit(compiled.Network, new EmitOptions(options.Seed, options.Opset, genotype.Name, metadata));
-        return new CompiledModel(genotype.Name, compiled.Hash, skeleton, options, compiled.Network, compiled.Figures, compiled.Warnings, bytes);
+        return new CompiledModel(genotype.Name, hashes.Hash, hashes.NetworkHash, skeleton, options, compiled.Network, compiled.Figures, compiled.Warnings, bytes);
     }
 
     /// <summary>
     /// Everything but the ONNX model: lower, infer shapes, count figures. No weight is drawn and
     /// nothing is serialized, which is most of a compile's time (`check --static`).
     /// </summary>
-    public static CompiledFigures CompileFigures(Genotype genotype, Skeleton skeleton, CompileOptions? options = null, string? hash = null)
+    /// <exception cref="DeadCellException">the cell's output does not depend on its input</exception>
+    /// <exception cref="CompileException">the network cannot be formed or would be too large</exception>
+    public static CompiledFigures CompileFigures(Genotype genotype, Skeleton skeleton, CompileOptions? options = null, GenotypeHashes? hashes = null)
     {
         options ??= CompileOptions.Default;
         if (options.Opset is < OnnxVersions.MinOpset or > OnnxVersions.MaxOpset)
@@ -50,19 +58,27 @@ public static class Compiler
                 $"exceeds the limit of {Limits.MaxExpandedPrimitiveOps:N0} primitive ops");
 
         var liveness = Liveness.Analyse(genotype);
-        hash ??= GenotypeHasher.Hash(genotype, liveness);
+        if (hashes is null || hashes.Merge != skeleton.Merge)
+            hashes = GenotypeHasher.Hashes(genotype, liveness, skeleton.Merge);
         var network = Lowerer.Lower(genotype, skeleton, liveness, options.Opset);
         var shaped = ShapeInference.Infer(network);
         var figures = FigureCounter.Count(shaped);
         if (figures.WeightBytes >= Limits.MaxModelBytes)
             throw new CompileException(
                 $"the model's weights take {figures.WeightBytes:N0} bytes; an ONNX file holds at most 2 GiB. Use fewer or narrower cells.");
-        return new CompiledFigures(genotype.Name, hash, options, shaped, figures, network.Warnings);
+        return new CompiledFigures(genotype.Name, hashes, options, shaped, figures, network.Warnings);
     }
+
+    /// <summary>
+    /// The genotype as a model records it (metadata key `genotype`): compact genotype/1 JSON with its
+    /// name and declarations. The search's id and meta are bookkeeping, not network: they stay in the
+    /// records, so one genotype screened under two ids (or saved as a file without one) is one model.
+    /// </summary>
+    public static string RecordedGenotype(Genotype genotype) => GenotypeJson.Serialize(genotype with { Id = null, Meta = null });
 }
 
 /// <summary>A compile without its ONNX bytes: the shaped network and its figures.</summary>
-public sealed record CompiledFigures(string Name, string Hash, CompileOptions Options, ShapedNetwork Network, NetworkFigures Figures, IReadOnlyList<string> Warnings)
+public sealed record CompiledFigures(string Name, GenotypeHashes Hashes, CompileOptions Options, ShapedNetwork Network, NetworkFigures Figures, IReadOnlyList<string> Warnings)
 {
     public TensorShape OutputShape => Network.OutputShape;
 }

@@ -125,6 +125,8 @@ public static partial class PrimitiveDeclarations
                 act = Activations.Parse(name)
                     ?? throw walk.Error($"unknown activation '{name}'; activations are: {string.Join(", ", Activations.All.Select(Activations.Name))}");
             });
+        // A 1x1 window has no gaps to spread: dilation changes nothing there, so it is the same definition.
+        if (kernel == 1) dilation = PrimitiveDefinition.DefaultDilation;
         return ok ? new PrimitiveDefinition(kind, kernel, dilation, repeat, expand, se, act) : null;
     }
 }

@@ -53,6 +53,12 @@ public static class InspectionJson
             writer.WriteString("node", node.Node);
             writer.WriteString("op_type", node.OpType);
             writer.WriteString("reason", node.Reason);
+            if (node.ShapeLostAt is { } gap)
+            {
+                writer.WritePropertyName("shape_lost_at");
+                WriteGap(writer, gap);
+            }
+            else writer.WriteNull("shape_lost_at");
             writer.WriteEndObject();
         }
         writer.WriteEndArray();
@@ -62,6 +68,15 @@ public static class InspectionJson
         writer.WriteNumber("declared", model.Shapes.Declared);
         writer.WriteNumber("inferred", model.Shapes.Inferred);
         writer.WriteNumber("unknown", model.Shapes.Unknown);
+        writer.WriteStartArray("lost_at");
+        foreach (var source in model.UnknownShapeSources)
+        {
+            writer.WriteStartObject();
+            WriteGapFields(writer, source.Gap);
+            writer.WriteNumber("tensors", source.Tensors);
+            writer.WriteEndObject();
+        }
+        writer.WriteEndArray();
         writer.WriteEndObject();
 
         writer.WriteStartObject("metadata_props");
@@ -74,6 +89,20 @@ public static class InspectionJson
             writer.WriteStringValue(note);
         writer.WriteEndArray();
         writer.WriteEndObject();
+    }
+
+    private static void WriteGap(Utf8JsonWriter writer, ShapeGap gap)
+    {
+        writer.WriteStartObject();
+        WriteGapFields(writer, gap);
+        writer.WriteEndObject();
+    }
+
+    private static void WriteGapFields(Utf8JsonWriter writer, ShapeGap gap)
+    {
+        writer.WriteString("node", gap.Node);
+        writer.WriteString("op_type", gap.OpType);
+        writer.WriteString("reason", gap.Reason);
     }
 
     private static void WriteCounts(Utf8JsonWriter writer, string name, IReadOnlyDictionary<string, int> counts)

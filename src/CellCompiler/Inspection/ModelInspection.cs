@@ -32,8 +32,14 @@ public sealed record OpsetImport(string Domain, long Version)
     public string DisplayDomain => Domain.Length == 0 ? "ai.onnx" : Domain;
 }
 
-/// <summary>A node whose MACs the section-4 rules would count but whose shapes do not allow it.</summary>
-public sealed record UncountedNode(string Node, string OpType, string Reason);
+/// <summary>Where a tensor's shape was lost: a node (its name, or its position when unnamed) or a graph input, and why.</summary>
+public sealed record ShapeGap(string Node, string OpType, string Reason);
+
+/// <summary>A place where shapes were lost, and how many computed tensors have unknown shapes because of it.</summary>
+public sealed record UnknownShapes(ShapeGap Gap, int Tensors);
+
+/// <summary>A node whose MACs the section-4 rules would count but whose shapes do not allow it; <paramref name="ShapeLostAt"/> is where the missing shape was lost.</summary>
+public sealed record UncountedNode(string Node, string OpType, string Reason, ShapeGap? ShapeLostAt = null);
 
 /// <summary>Where the shapes of the tensors that nodes produce came from.</summary>
 /// <param name="Declared">Fully stated by the model (value_info, graph outputs).</param>
@@ -44,8 +50,8 @@ public sealed record ShapeCoverage(int Declared, int Inferred, int Unknown);
 /// <summary>
 /// What `cellc inspect` reports about any ONNX model. Figures follow contract section 4 applied
 /// to any model: params are initializer elements except BatchNormalization running statistics
-/// (inputs 3 and 4), which are buffers; MACs are per sample (the first dimension of activations is
-/// the batch) for Conv, Gemm and MatMul against a 2-D matrix.
+/// (inputs 3 and 4), which are buffers, and integer constants; MACs are per sample (the first
+/// dimension of activations is the batch) for Conv and Gemm only, as section 4 counts them.
 /// </summary>
 public sealed record ModelInspection
 {
@@ -102,6 +108,9 @@ public sealed record ModelInspection
     public required IReadOnlyDictionary<string, int> OpsOutsideMacRules { get; init; }
 
     public required ShapeCoverage Shapes { get; init; }
+
+    /// <summary>Where the shapes counted unknown in <see cref="Shapes"/> were lost, in graph order.</summary>
+    public required IReadOnlyList<UnknownShapes> UnknownShapeSources { get; init; }
 
     /// <summary>metadata_props in file order (a repeated key keeps its last value).</summary>
     public required IReadOnlyDictionary<string, string> Metadata { get; init; }

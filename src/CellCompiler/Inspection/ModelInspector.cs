@@ -1,7 +1,6 @@
 using System.Globalization;
 using CellCompiler.Input;
 using CellCompiler.OnnxFormat;
-using Google.Protobuf;
 
 namespace CellCompiler.Inspection;
 
@@ -23,32 +22,23 @@ public static class ModelInspector
         "FusedMatMul", "NhwcConv",
     };
 
-    /// <summary>Reads and inspects a model file; every failure is an <see cref="InputException"/> naming the file.</summary>
+    /// <summary>Reads and inspects a model file, pipe or device; every failure is an <see cref="InputException"/> naming it.</summary>
     public static ModelInspection InspectFile(string path)
     {
-        byte[] bytes;
-        try
-        {
-            if (Directory.Exists(path)) throw new InputException(path, "", "is a folder, not an ONNX model file");
-            var info = new FileInfo(path);
-            if (!info.Exists) throw new InputException(path, "", "file not found");
-            if (info.Length > Limits.MaxModelBytes)
-                throw new InputException(path, "",
-                    $"the file is {info.Length:N0} bytes; models over 2 GiB are not supported (a single protobuf message holds at most 2 GiB)");
-            bytes = File.ReadAllBytes(path);
-        }
-        catch (IOException e) { throw new InputException(path, "", $"cannot read the file: {e.Message}"); }
-        catch (UnauthorizedAccessException e) { throw new InputException(path, "", $"cannot read the file: {e.Message}"); }
-        return Inspect(bytes, path);
+        var (proto, bytes) = ModelFileReader.Read(path);
+        return Inspect(proto, bytes, path);
     }
 
     /// <summary>Inspects a serialized model; a model that cannot be read is an <see cref="InputException"/> naming <paramref name="source"/>.</summary>
-    public static ModelInspection Inspect(byte[] model, string source = "model")
+    public static ModelInspection Inspect(byte[] model, string source = "model") =>
+        Inspect(ModelFileReader.Parse(model, source), model.LongLength, source);
+
+    private static ModelInspection Inspect(ModelProto proto, long modelBytes, string source)
     {
-        var proto = Parse(model, source);
         var graph = proto.Graph;
 
-        var (shapes, coverage) = ShapePropagation.Run(graph);
+        var propagation = ShapePropagation.Run(graph);
+        var (shapes, coverage) = (propagation.Table, propagation.Coverage);
         var initializerNames = graph.Initializer.Select(t => t.Name).ToHashSet(StringComparer.Ordinal);
 
         // Op counts over the main graph; nodes inside subgraphs are counted apart.
@@ -78,22 +68,22 @@ public static class ModelInspector
 
         var notes = new List<string>();
         if (external > 0)
-            notes.Add($"{external} initializer(s) keep their data in external files; their elements are counted from their dims");
+            notes.Add($"{Plural(external, "initializer keeps its", "initializers keep their")} data in external files; elements are counted from the dims");
         if (constants > 0)
-            notes.Add($"{constants.ToString("N0", CultureInfo.InvariantCulture)} elements of int64/bool initializers (shapes, axes, indices) are not counted as params");
+            notes.Add($"{Plural(constants, "element", "elements")} of int64/bool initializers (shapes, axes, indices) {(constants == 1 ? "is" : "are")} not counted as params");
         if (initializersAsInputs > 0)
-            notes.Add($"{initializersAsInputs} initializer(s) are also listed as graph inputs (defaults a caller may override); they are not shown as inputs");
+            notes.Add($"{Plural(initializersAsInputs, "initializer is", "initializers are")} also listed as graph inputs (defaults a caller may override), not shown as inputs");
         if (subgraphNodes > 0)
-            notes.Add($"{subgraphNodes} node(s) inside subgraphs (If/Loop/Scan bodies) are not in the op counts or MACs");
+            notes.Add($"{Plural(subgraphNodes, "node inside a subgraph (If/Loop/Scan body) is", "nodes inside subgraphs (If/Loop/Scan bodies) are")} not in the op counts or MACs");
         if (outside.Count > 0)
             notes.Add($"{string.Join(", ", outside.Select(kv => $"{kv.Key} ({kv.Value})"))} also multiply-accumulate, " +
                       "but section 4 counts only Conv and Gemm: their MACs are not in the total");
         if (coverage.Inferred > 0)
-            notes.Add($"{coverage.Inferred} tensor shape(s) the model does not state were propagated by cellc along the graph");
+            notes.Add($"{Plural(coverage.Inferred, "tensor shape the model does not state was", "tensor shapes the model does not state were")} propagated by cellc along the graph");
 
         return new ModelInspection
         {
-            ModelBytes = model.LongLength,
+            ModelBytes = modelBytes,
             IrVersion = proto.IrVersion,
             ProducerName = proto.ProducerName,
             ProducerVersion = proto.ProducerVersion,
@@ -118,28 +108,14 @@ public static class ModelInspector
             MacsNotComputed = notComputed,
             OpsOutsideMacRules = outside,
             Shapes = coverage,
+            UnknownShapeSources = propagation.Gaps,
             Metadata = metadata,
             Notes = notes,
         };
     }
 
-    private static ModelProto Parse(byte[] bytes, string source)
-    {
-        if (bytes.Length == 0) throw new InputException(source, "", "the file is empty, not an ONNX model");
-        var first = bytes.Select(b => (char)b).FirstOrDefault(c => !char.IsWhiteSpace(c));
-        var hint = first is '{' or '[' ? " (it looks like JSON text; ONNX models are binary protobuf files)" : "";
-        ModelProto model;
-        try { model = ModelProto.Parser.ParseFrom(bytes); }
-        catch (InvalidProtocolBufferException e)
-        {
-            throw new InputException(source, "", $"not an ONNX model: the file is not a valid ONNX protobuf ({e.Message.TrimEnd('.')}){hint}");
-        }
-        // Arbitrary bytes can happen to parse as a protobuf message: require what every ONNX model has.
-        if (model.Graph is null || model.IrVersion <= 0 || model.OpsetImport.Count == 0)
-            throw new InputException(source, "",
-                $"not an ONNX model: no {(model.Graph is null ? "graph" : model.IrVersion <= 0 ? "ir_version" : "opset_import")} in the file{hint}");
-        return model;
-    }
+    private static string Plural(long count, string one, string many) =>
+        $"{count.ToString("N0", CultureInfo.InvariantCulture)} {(count == 1 ? one : many)}";
 
     private static bool IsDefaultDomain(string domain) => domain is "" or "ai.onnx";
 
@@ -205,19 +181,25 @@ public static class ModelInspector
         {
             var node = graph.Node[index];
             if (!IsDefaultDomain(node.Domain) || node.OpType is not ("Conv" or "Gemm")) continue;
-            var name = node.Name.Length > 0 ? node.Name : $"#{index} ({node.OpType} -> {string.Join(", ", node.Output)})";
+            var name = OnnxAttributes.DisplayName(node, index);
             Dim[]? Shape(IList<string> names, int i) => i < names.Count ? shapes[names[i]] : null;
             var (macs, reason) = node.OpType switch
             {
                 "Conv" => ConvMacs(Shape(node.Input, 1), Shape(node.Output, 0)),
-                _ => GemmMacs(node, Shape(node.Input, 0), Shape(node.Input, 1), Shape(node.Output, 0)),
+                "Gemm" => GemmMacs(node, Shape(node.Input, 0), Shape(node.Input, 1), Shape(node.Output, 0)),
+                _ => throw new InvalidOperationException($"no MAC rule for {node.OpType}"),
             };
             if (macs is { } m)
             {
                 try { known = checked(known + m); }
                 catch (OverflowException) { notComputed.Add(new UncountedNode(name, node.OpType, "the total exceeds 2^63")); }
             }
-            else notComputed.Add(new UncountedNode(name, node.OpType, reason!));
+            else
+            {
+                // Where the missing shape was lost: the output's origin, else an input's.
+                var lostAt = node.Output.Concat(node.Input).Select(shapes.Gap).FirstOrDefault(g => g is not null);
+                notComputed.Add(new UncountedNode(name, node.OpType, reason!, lostAt));
+            }
         }
         return (known, notComputed);
     }

@@ -14,15 +14,24 @@ public sealed record ForwardResult(float[] Values, long[] Shape)
 /// </summary>
 public sealed class ForwardPass : IDisposable
 {
+    /// <summary>
+    /// No graph optimizations: the runtime executes the graph exactly as written. Creating a
+    /// session this way costs about half of a fully optimized one (the optimizers rewrite and
+    /// re-resolve the whole graph, and the NCHWc layout pass alone is a large share), which is
+    /// most of a smoke test's time; the runs themselves are slower, but there are only two.
+    /// Latency is measured with full optimizations instead (<see cref="LatencyMeter"/>).
+    /// </summary>
+    public const GraphOptimizationLevel AsWritten = GraphOptimizationLevel.ORT_DISABLE_ALL;
+
     private readonly InferenceSession _session;
 
-    public ForwardPass(byte[] model, int intraOpThreads = 1)
+    public ForwardPass(byte[] model, GraphOptimizationLevel optimization = AsWritten, int intraOpThreads = 1)
     {
         using var options = new SessionOptions
         {
             IntraOpNumThreads = intraOpThreads,
             InterOpNumThreads = 1,
-            GraphOptimizationLevel = GraphOptimizationLevel.ORT_ENABLE_ALL,
+            GraphOptimizationLevel = optimization,
             LogSeverityLevel = OrtLoggingLevel.ORT_LOGGING_LEVEL_ERROR,
         };
         _session = new InferenceSession(model, options);

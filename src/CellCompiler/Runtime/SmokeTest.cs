@@ -1,18 +1,28 @@
+using Microsoft.ML.OnnxRuntime;
+
 namespace CellCompiler.Runtime;
 
 /// <summary>
 /// Runs a model on ONNX Runtime's CPU provider and checks that it works: the session loads, the
 /// output has the expected shape at batch 1 and at batch 2, every logit is finite, and the logits
 /// depend on the input (two different samples give different logits).
+/// The session runs the graph as written, without graph optimizations (<see cref="ForwardPass.AsWritten"/>):
+/// that is the cheapest session to create, and the tests show it finds every failure that a fully
+/// optimized session finds (tests/CellCompiler.Tests/SmokeSettingsTests.cs).
 /// </summary>
 public static class SmokeTest
 {
     /// <param name="inputShape">Shape of one sample (without the batch dimension).</param>
     /// <param name="outputShape">Expected shape of one sample's output (without the batch dimension).</param>
-    public static SmokeVerdict Run(byte[] model, IReadOnlyList<int> inputShape, IReadOnlyList<int> outputShape, long seed = 0)
+    public static SmokeVerdict Run(byte[] model, IReadOnlyList<int> inputShape, IReadOnlyList<int> outputShape, long seed = 0) =>
+        Run(model, inputShape, outputShape, seed, ForwardPass.AsWritten);
+
+    /// <summary>The same test on a session with the given graph optimizations (to compare settings).</summary>
+    public static SmokeVerdict Run(byte[] model, IReadOnlyList<int> inputShape, IReadOnlyList<int> outputShape, long seed,
+        GraphOptimizationLevel optimization)
     {
         ForwardPass pass;
-        try { pass = new ForwardPass(model); }
+        try { pass = new ForwardPass(model, optimization); }
         catch (Exception e)
         {
             return new SmokeVerdict($"ONNX Runtime could not load the model: {OneLine(e.Message)}", "runtime cannot load");

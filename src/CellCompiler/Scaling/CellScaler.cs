@@ -20,11 +20,15 @@ public static class CellScaler
         LatencySettings? latency,
         Action<ScaleTarget, CompiledModel>? onModel = null)
     {
-        var hash = Hashing.GenotypeHasher.Hash(genotype);
+        var liveness = Lowering.Liveness.Analyse(genotype);
+        var byMerge = new Dictionary<MergeMode, Hashing.GenotypeHashes>();
         var rows = new List<ScaleRow>(targets.Count);
         foreach (var target in targets)
         {
-            var model = Compiler.Compile(genotype, target.Skeleton, options, hash);
+            var merge = target.Skeleton.Merge;
+            if (!byMerge.TryGetValue(merge, out var hashes))
+                byMerge[merge] = hashes = Hashing.GenotypeHasher.Hashes(genotype, liveness, merge);
+            var model = Compiler.Compile(genotype, target.Skeleton, options, hashes);
             onModel?.Invoke(target, model);
             var stats = latency is null ? null : LatencyMeter.Measure(model.OnnxBytes, latency with { Batches = [1] }).AtBatch(1);
             rows.Add(new ScaleRow(target, model.Figures.Params, model.Figures.Macs, model.Figures.PeakActivationBytes,

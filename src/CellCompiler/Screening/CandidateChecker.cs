@@ -63,9 +63,9 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             return Failed(candidate, null, CheckStatus.Invalid, candidate.Error!.OneLine, "invalid: " + Kind(candidate.Error.Problem), [], clock);
 
         // Everything but the latency measurement is shared work; the measurement waits until none runs.
-        var (hash, warnings, notes, evaluation, cached, model, latencyKey, units) = _gate.Shared(() => Prepare(genotype));
+        var (hashes, warnings, notes, evaluation, cached, model, latencyKey, units) = _gate.Shared(() => Prepare(genotype));
         if (!evaluation.Works)
-            return Failed(candidate, hash, evaluation.Failure!.Value, evaluation.FailureReason!, evaluation.FailureKind, warnings, clock, cached) with { Notes = notes };
+            return Failed(candidate, hashes, evaluation.Failure!.Value, evaluation.FailureReason!, evaluation.FailureKind, warnings, clock, cached) with { Notes = notes };
 
         double? predicted = null;
         if (units is not null)
@@ -79,7 +79,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             }
             catch (Exception e) when (e is not OutOfMemoryException)
             {
-                return Failed(candidate, hash, CheckStatus.Broken,
+                return Failed(candidate, hashes, CheckStatus.Broken,
                     $"latency prediction failed while measuring units missing from the table: {e.Message.ReplaceLineEndings(" ")}",
                     "latency prediction failed", warnings, clock);
             }
@@ -101,7 +101,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
                 }
                 catch (Exception e) when (e is not OutOfMemoryException)
                 {
-                    return Failed(candidate, hash, CheckStatus.Broken,
+                    return Failed(candidate, hashes, CheckStatus.Broken,
                         $"latency measurement failed: {e.Message.ReplaceLineEndings(" ")}", "latency measurement failed", warnings, clock);
                 }
                 cache?.StoreLatency(latencyKey, latency);
@@ -121,7 +121,8 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         {
             Id = candidate.Id,
             Name = genotype.Name,
-            Hash = hash,
+            Hash = hashes.Hash,
+            NetworkHash = hashes.NetworkHash,
             Status = status,
             Reason = reason,
             ReasonKind = kind,
@@ -133,6 +134,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             Ops = figures.OpCounts,
             Warnings = warnings,
             Notes = notes,
+            SmokeTested = evaluation.SmokeTested,
             OnnxBytes = evaluation.OnnxBytes,
             TrainMemoryBytes = trainMemory,
             LatencyMs = latency?.AtBatch(1)?.P50Ms,
@@ -141,10 +143,14 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             Cached = cached,
             CheckMs = Math.Round(clock.Elapsed.TotalMilliseconds, 4),
             Meta = MetaOf(candidate),
+            Budgets = RecordedBudgets,
         };
     }
 
-    private sealed record Prepared(string Hash, IReadOnlyList<string> Warnings, IReadOnlyList<string> Notes, Evaluation Evaluation, bool Cached, byte[]? Model, string? LatencyKey,
+    /// <summary>The run's budgets as records carry them: null when none was set.</summary>
+    private Budgets? RecordedBudgets => options.Budgets == Budgets.None ? null : options.Budgets;
+
+    private sealed record Prepared(GenotypeHashes Hashes, IReadOnlyList<string> Warnings, IReadOnlyList<string> Notes, Evaluation Evaluation, bool Cached, byte[]? Model, string? LatencyKey,
         UnitCounts? Units);
 
     /// <summary>The candidate's `meta` object as written (the reader kept it as compact JSON text).</summary>
@@ -162,11 +168,13 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     private Prepared Prepare(Genotype genotype)
     {
         var liveness = Liveness.Analyse(genotype);
-        var hash = GenotypeHasher.Hash(genotype, liveness);
+        var hashes = GenotypeHasher.Hashes(genotype, liveness, options.Skeleton.Merge);
         var warnings = Lowerer.Warnings(genotype, liveness);
         IReadOnlyList<string> notes = liveness.Cell(genotype).OutputIsLive && !Lowerer.HasTrainableOp(genotype, liveness)
             ? [Lowerer.TrivialCellNote] : [];
-        var key = $"{hash}|{_settingsKey}";
+        // The network hash is the key: the settings hold the skeleton and so its merge mode, and under
+        // sum merges genotypes that differ only by nesting of sums are the same network.
+        var key = $"{hashes.NetworkHash}|{_settingsKey}";
 
         byte[]? model = null;
         var evaluation = cache?.FindEvaluation(key);
@@ -175,13 +183,13 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         if (options.Static)
         {
             // Static checks only read the cache: a static evaluation is cheaper to make again than to store.
-            evaluation ??= EvaluateStatic(genotype, hash);
-            return new Prepared(hash, warnings, notes, evaluation, cached, null, null, CountUnits(genotype, liveness, evaluation));
+            evaluation ??= EvaluateStatic(genotype, hashes);
+            return new Prepared(hashes, warnings, notes, evaluation, cached, null, null, CountUnits(genotype, liveness, evaluation));
         }
-        if (evaluation is null || (!evaluation.SmokeTested && !OverStaticBudget(evaluation)))
+        if (evaluation is null || (!evaluation.SmokeTested && WouldRun(evaluation)))
         {
             cached = false;
-            (evaluation, model) = Evaluate(genotype, hash);
+            (evaluation, model) = Evaluate(genotype, hashes);
             // Only networks that compiled are cached: a compile failure's reason names this spelling's
             // own JSON paths (every dead cell has the same hash), and finding it again is cheap.
             if (evaluation.Figures is not null) cache?.StoreEvaluation(key, evaluation);
@@ -194,10 +202,10 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             if (cache?.FindLatency(latencyKey) is null && model is null)
             {
                 using var reservation = _memory.Reserve(CompileEstimate(genotype));
-                model = Compiler.Compile(genotype, options.Skeleton, options.Compile, hash).OnnxBytes;
+                model = Compiler.Compile(genotype, options.Skeleton, options.Compile, hashes).OnnxBytes;
             }
         }
-        return new Prepared(hash, warnings, notes, evaluation, cached, model, latencyKey, CountUnits(genotype, liveness, evaluation));
+        return new Prepared(hashes, warnings, notes, evaluation, cached, model, latencyKey, CountUnits(genotype, liveness, evaluation));
     }
 
     /// <summary>The units of a candidate that compiled and works, when a prediction is asked for.</summary>
@@ -209,8 +217,10 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     private long TrainMemory(Evaluation evaluation) =>
         TrainingMemory.EstimateBytes(evaluation.ActivationBytesPerSample!.Value, evaluation.Figures!.Params, evaluation.Figures.Buffers, options.TrainBatch);
 
-    private bool OverStaticBudget(Evaluation evaluation) =>
-        Judge(evaluation.Figures!, TrainMemory(evaluation), null, options, null).Item1 != CheckStatus.Ok || TooLargeToRun(evaluation.Figures!) is not null;
+    /// <summary>Whether these options run a network that a cached evaluation did not run.</summary>
+    private bool WouldRun(Evaluation evaluation) =>
+        TooLargeToRun(evaluation.Figures!) is null
+        && (options.RunOverBudget || Judge(evaluation.Figures!, TrainMemory(evaluation), null, options, null).Item1 == CheckStatus.Ok);
 
     /// <summary>
     /// Memory to run at batch 2, estimated: the model bytes three times (ours, the runtime's copy and
@@ -267,24 +277,25 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     }
 
     /// <summary>Compile without weights or ONNX bytes, and count: all a static check needs.</summary>
-    private Evaluation EvaluateStatic(Genotype genotype, string hash) =>
+    private Evaluation EvaluateStatic(Genotype genotype, GenotypeHashes hashes) =>
         CompileGuarded(genotype, () =>
         {
-            var model = Compiler.CompileFigures(genotype, options.Skeleton, options.Compile, hash);
+            var model = Compiler.CompileFigures(genotype, options.Skeleton, options.Compile, hashes);
             var activation = TrainingMemory.ActivationBytesPerSample(model.Network);
             return new Evaluation(null, null, null, model.OutputShape.Dims, model.Figures, activation, null, SmokeTested: false);
         }, failed => failed);
 
     /// <summary>Compile and smoke-test: the cacheable part of a check.</summary>
-    private (Evaluation, byte[]?) Evaluate(Genotype genotype, string hash)
+    private (Evaluation, byte[]?) Evaluate(Genotype genotype, GenotypeHashes hashes)
     {
         var (model, failure) = CompileGuarded<(CompiledModel?, Evaluation?)>(genotype,
-            () => (Compiler.Compile(genotype, options.Skeleton, options.Compile, hash), null), failed => (null, failed));
+            () => (Compiler.Compile(genotype, options.Skeleton, options.Compile, hashes), null), failed => (null, failed));
         if (failure is not null) return (failure, null);
         var activation = TrainingMemory.ActivationBytesPerSample(model!.Network);
         var compiled = new Evaluation(null, null, null, model.OutputShape.Dims, model.Figures, activation, model.OnnxBytes.LongLength, SmokeTested: false);
-        // Budgets that need no run are judged first: a candidate already over one is not run at all.
-        if (Judge(model.Figures, TrainMemory(compiled), null, options, null).Item1 != CheckStatus.Ok)
+        // Budgets that need no run are judged first: a candidate already over one is not run at all
+        // unless the user asks for it.
+        if (!options.RunOverBudget && Judge(model.Figures, TrainMemory(compiled), null, options, null).Item1 != CheckStatus.Ok)
             return (compiled, model.OnnxBytes);
         if (TooLargeToRun(model.Figures) is { } tooLarge)
             return (compiled with { FailureReason = tooLarge }, model.OnnxBytes);
@@ -304,12 +315,13 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     private static string LatencyKey(LatencySettings s) =>
         $"cpu={MachineInfo.Processor}|ort={MachineInfo.RuntimeVersion}|threads={s.Threads}|batches={string.Join(",", s.BatchSizes)}|warmup={s.Warmup}|runs={s.Runs}|min={s.MinSeconds}";
 
-    private static CheckRecord Failed(Candidate candidate, string? hash, CheckStatus status, string reason, string? kind,
+    private CheckRecord Failed(Candidate candidate, GenotypeHashes? hashes, CheckStatus status, string reason, string? kind,
         IReadOnlyList<string> warnings, Stopwatch clock, bool cached = false) => new()
     {
         Id = candidate.Id,
         Name = candidate.Genotype?.Name,
-        Hash = hash,
+        Hash = hashes?.Hash,
+        NetworkHash = hashes?.NetworkHash,
         Status = status,
         Reason = reason,
         ReasonKind = kind,
@@ -317,6 +329,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         Cached = cached,
         CheckMs = Math.Round(clock.Elapsed.TotalMilliseconds, 4),
         Meta = MetaOf(candidate),
+        Budgets = RecordedBudgets,
     };
 
     /// <summary>The record of a candidate whose check failed in a way this tool did not foresee (a bug).</summary>

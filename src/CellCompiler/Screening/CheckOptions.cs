@@ -9,7 +9,9 @@ namespace CellCompiler.Screening;
 /// <see cref="MaxRunNodes"/> bounds the time and memory of a smoke run: ONNX Runtime's session set-up
 /// grows faster than linearly with the node count (a network of 100,000 nodes took minutes and
 /// gigabytes), so a larger network is compiled and counted but not run, and reported as
-/// `over_budget` ("too large to run here"). With <see cref="LatencyTablePath"/> every compiled
+/// `over_budget` ("too large to run here"). A candidate already over a budget that needs no run is
+/// not run either, unless <see cref="RunOverBudget"/> asks for it, so that "works, but exceeds a
+/// budget" can be true when reported. With <see cref="LatencyTablePath"/> every compiled
 /// candidate gets a predicted latency; <see cref="Static"/> checks without ONNX Runtime: compile in
 /// memory (no weights, no ONNX bytes), figures, budgets and the prediction.
 /// </summary>
@@ -19,7 +21,8 @@ public sealed record CheckOptions(
     Budgets Budgets,
     int TrainBatch = CheckOptions.DefaultTrainBatch,
     LatencySettings? Latency = null,
-    int MaxRunNodes = CheckOptions.DefaultMaxRunNodes)
+    int MaxRunNodes = CheckOptions.DefaultMaxRunNodes,
+    bool RunOverBudget = false)
 {
     public const int DefaultTrainBatch = 64;
 

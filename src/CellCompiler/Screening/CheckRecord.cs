@@ -16,6 +16,9 @@ public sealed record CheckRecord
     public required string Id { get; init; }
     public string? Name { get; init; }
     public string? Hash { get; init; }
+
+    /// <summary>The network's hash under the skeleton's merge mode (contract section 4): a population is deduplicated by it.</summary>
+    public string? NetworkHash { get; init; }
     public required CheckStatus Status { get; init; }
     public string? Reason { get; init; }
     public string? ReasonKind { get; init; }
@@ -33,6 +36,9 @@ public sealed record CheckRecord
 
     /// <summary>Findings for programs to act on without reading prose, e.g. "trivial-cell" (no trainable op in the cell).</summary>
     public IReadOnlyList<string> Notes { get; init; } = [];
+    /// <summary>Whether the network was run on ONNX Runtime (false: compiled and counted only, e.g. already over a budget); null when it never compiled.</summary>
+    public bool? SmokeTested { get; init; }
+
     public long? OnnxBytes { get; init; }
     public long? TrainMemoryBytes { get; init; }
 
@@ -55,6 +61,10 @@ public sealed record CheckRecord
     /// <summary>The genotype's own `meta` object (contract section 1), copied unchanged; absent when it had none.</summary>
     [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
     public System.Text.Json.JsonElement? Meta { get; init; }
+
+    /// <summary>The budgets the run judged this candidate against (absent when none was set), so that a report can draw the cut.</summary>
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public Budgets? Budgets { get; init; }
 
     /// <summary>Compiled: params and MACs known.</summary>
     [JsonIgnore]

@@ -28,6 +28,7 @@ public sealed record ScreeningSettings
     public int TrainBatch { get; init; }
     public LatencyFingerprint? Latency { get; init; }
     public int MaxRunNodes { get; init; }
+    public bool RunOverBudget { get; init; }
     public required string Shard { get; init; }
 
     /// <summary>`--static`; written only when set, so that settings files of runs without it compare as before.</summary>
@@ -54,6 +55,7 @@ public sealed record ScreeningSettings
             TrainBatch = options.TrainBatch,
             Latency = latency is null ? null : new LatencyFingerprint(latency.Threads, latency.BatchSizes, latency.Warmup, latency.Runs, latency.MinSeconds),
             MaxRunNodes = options.MaxRunNodes,
+            RunOverBudget = options.RunOverBudget,
             Shard = shard.ToString(),
             Static = options.Static,
             LatencyTable = options.LatencyTablePath is { } table
