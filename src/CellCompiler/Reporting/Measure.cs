@@ -27,7 +27,7 @@ public sealed record Measure(string Key, string Label, Func<ChartPoint, double> 
         Budget: b => b.MaxLatencyMs, BudgetOption: "--max-latency-ms");
 
     public static readonly Measure PredictedLatency = new("latency-predicted", "predicted latency p50 at batch 1 (ms)", p => p.PredictedMs,
-        Html.MillisecondTick, Html.Milliseconds, Budget: b => b.MaxLatencyMs, BudgetOption: "--max-latency-ms");
+        Html.MillisecondTick, Html.Milliseconds, Budget: b => b.MaxPredictedLatencyMs, BudgetOption: "--max-predicted-latency-ms");
 
     /// <summary>The i-th objective of the report.</summary>
     public static Measure For(Objective objective, int index) =>

@@ -41,15 +41,7 @@ public static class ChartPlan
             charts.Add(Scatter(s, "chart-params-latency", "Latency p50 against params", ChartGroup.Cost, small: false,
                 Measure.Params, Measure.Latency, s.ParamsVsLatency, pointLimit));
         }
-        if (s.WithPrediction > 0)
-        {
-            var budgets = ReportCharts.BudgetOptions(s, Measure.Latency);
-            charts.Add(new ReportChart("chart-latency-predicted", "Predicted against measured latency p50", 
-                $"{Html.Whole(s.WithPrediction)} candidates with both; on the dashed diagonal the prediction is exact. " +
-                "Predictions hold only where the predictor was calibrated." + BudgetCaption(budgets),
-                ChartGroup.Cost, false, null, budgets,
-                () => ReportCharts.Scatter(s, Measure.Latency, Measure.PredictedLatency, null, pointLimit, diagonal: true)));
-        }
+        if (PredictionChart.For(s, pointLimit) is { } predicted) charts.Add(predicted);
         charts.Add(Scatter(s, "chart-params-macs", "MACs against params", ChartGroup.Cost, small: latency,
             Measure.Params, Measure.Macs, s.ParamsVsMacs, pointLimit));
         charts.Add(Histogram(s, "chart-params-hist", "Params", Measure.Params));
@@ -79,7 +71,7 @@ public static class ChartPlan
             ChartGroup.Cost, false, null, budgets, () => ReportCharts.Histogram(s, measure));
     }
 
-    private static string BudgetCaption(IReadOnlyList<string> budgets) => budgets.Count == 0
+    public static string BudgetCaption(IReadOnlyList<string> budgets) => budgets.Count == 0
         ? ""
         : $" Dashed: the run's {string.Join(" and ", budgets.Select(b => $"<code>{Html.Text(b)}</code>"))}.";
 }

@@ -32,10 +32,8 @@ public static class ReportCharts
         var yValues = points.Select(y.Of).ToList();
         if (diagonal)
         {
-            // One scale for both axes, so that the diagonal is the line of perfect prediction.
-            xValues = yValues = xValues.Concat(yValues).ToList();
-            xBudget ??= yBudget;
-            yBudget ??= xBudget;
+            // One scale for both axes, so that the diagonal is the line of perfect prediction; each axis keeps its own budget.
+            xValues = yValues = [.. xValues, .. yValues, .. new[] { xBudget, yBudget }.OfType<double>()];
         }
         model.Axes.Add(ValueAxis(AxisPosition.Bottom, x.Label, xValues, xBudget, x.Tick));
         model.Axes.Add(ValueAxis(AxisPosition.Left, y.Label, yValues, yBudget, y.Tick));
@@ -75,8 +73,7 @@ public static class ReportCharts
         }
         if (front is not null) AddFront(model, front.Members);
         if (xBudget is { } xb) model.Annotations.Add(BudgetLine(LineAnnotationType.Vertical, xb, x));
-        // Predicted against measured: one budget on both axes, named once.
-        if (yBudget is { } yb) model.Annotations.Add(BudgetLine(LineAnnotationType.Horizontal, yb, y, labelled: !(diagonal && xBudget is not null)));
+        if (yBudget is { } yb) model.Annotations.Add(BudgetLine(LineAnnotationType.Horizontal, yb, y));
         if (points.Count == 0) model.Subtitle = "no candidate has these figures";
         return model;
     }

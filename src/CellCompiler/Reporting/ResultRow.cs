@@ -33,9 +33,8 @@ public sealed record ResultRow(
     public Budgets? Budgets { get; init; }
 
     /// <summary>
-    /// Latency p50 at batch 1 as predicted rather than measured. Records do not carry a prediction yet;
-    /// once CheckRecord has `latency_predicted_ms`, <see cref="From"/> sets it here and the report's
-    /// predicted-against-measured chart appears for records that hold both.
+    /// Latency at batch 1 as predicted from a latency table (the record's `latency_predicted_ms`); the
+    /// report's predicted-against-measured chart appears for records that hold both.
     /// </summary>
     public double? LatencyPredictedMs { get; init; }
 
@@ -54,6 +53,7 @@ public sealed record ResultRow(
             // Records written without notes read with none (older files).
             Trivial = (r.Notes ?? []).Contains(Lowerer.TrivialCellNote, StringComparer.Ordinal),
             Budgets = r.Budgets,
+            LatencyPredictedMs = r.LatencyPredictedMs,
             HasScores = metrics is not null,
             Objectives = objectives.Select(o => metrics is not null && metrics.TryGetValue(o.Name, out var v) ? v : MetaNumber(r.Meta, o.Name)).ToList(),
         };
