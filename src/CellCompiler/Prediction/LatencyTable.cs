@@ -1,3 +1,5 @@
+using System.Collections.Concurrent;
+
 namespace CellCompiler.Prediction;
 
 /// <summary>
@@ -15,6 +17,10 @@ public sealed class LatencyTable
 {
     private readonly SortedDictionary<string, UnitTime> _units;
 
+    // Look-ups by unit (record equality), so that summing a candidate builds no key text: measured to
+    // be most of a prediction's time otherwise. Valid for ever, since the table never changes.
+    private readonly ConcurrentDictionary<LatencyUnit, UnitTime?> _found = new();
+
     public LatencyTable(TableConditions conditions, IEnumerable<KeyValuePair<string, UnitTime>> units)
     {
         Conditions = conditions;
@@ -29,9 +35,9 @@ public sealed class LatencyTable
 
     public int Count => _units.Count;
 
-    public UnitTime? Find(LatencyUnit unit) => _units.GetValueOrDefault(unit.Key);
+    public UnitTime? Find(LatencyUnit unit) => _found.GetOrAdd(unit, u => _units.GetValueOrDefault(u.Key));
 
-    public bool Contains(LatencyUnit unit) => _units.ContainsKey(unit.Key);
+    public bool Contains(LatencyUnit unit) => Find(unit) is not null;
 
     /// <summary>
     /// This table plus <paramref name="added"/>. With <paramref name="replace"/> an added entry
