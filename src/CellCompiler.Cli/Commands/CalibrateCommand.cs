@@ -58,8 +58,8 @@ public static class CalibrateCommand
             var table = parse.GetValue(primitives) is { } file ? PrimitiveDeclarations.ReadFile(file) : PrimitiveTable.BuiltinsOnly;
             var request = new CalibrationRequest(skeleton.Resolve(parse), table, parse.GetValue(maxFanIn), parse.GetValue(threads), parse.GetValue(settings.Opset));
             var startLoad = SystemLoad.OneMinute();
-            Console.Error.WriteLine($"cellc calibrate: {Formatting.Plural(Calibration.Plan(request).Count, "unit")} of {CompileReport.DescribeSkeleton(request.Skeleton)}, " +
-                                    $"{Formatting.Plural(request.Threads, "thread")}, opset {request.Opset}{LoadNote(startLoad)}");
+            Console.Error.WriteLine($"cellc calibrate: {Wording.Counted(Calibration.Plan(request).Count, "unit")} of {CompileReport.DescribeSkeleton(request.Skeleton)}, " +
+                                    $"{Wording.Counted(request.Threads, "thread")}, opset {request.Opset}{LoadNote(startLoad)}");
             if (startLoad is { } load && load > Environment.ProcessorCount)
                 Console.Error.WriteLine($"cellc calibrate: warning: the load average ({Number(load)}) exceeds the {Environment.ProcessorCount} cores: " +
                                         "other work will distort the table; calibrate when the machine is quiet");
@@ -67,8 +67,8 @@ public static class CalibrateCommand
                 $"cellc calibrate: [{step.Done}/{step.Total}] {TerminalText.Safe(step.Unit)}: {step.Ms.ToString("0.0000", CultureInfo.InvariantCulture)} ms" +
                 $"  ({Formatting.Duration(step.Elapsed)} elapsed, about {Formatting.Duration(step.Remaining)} left{LoadNote(step.Load, ", load ")})"));
             var c = result.Conditions;
-            Console.Out.WriteLine($"Wrote {TerminalText.Safe(path)}: {Formatting.Plural(result.Count, "unit")} in all, for {TerminalText.Safe(c.Processor)}, " +
-                                  $"ONNX Runtime {c.OnnxRuntime}, {Formatting.Plural(c.Threads, "thread")}, opset {c.Opset}.");
+            Console.Out.WriteLine($"Wrote {TerminalText.Safe(path)}: {Wording.Counted(result.Count, "unit")} in all, for {TerminalText.Safe(c.Processor)}, " +
+                                  $"ONNX Runtime {c.OnnxRuntime}, {Wording.Counted(c.Threads, "thread")}, opset {c.Opset}.");
             Console.Out.WriteLine("Predictions from this table hold only on this machine model, with this ONNX Runtime version, thread count and " +
                                   "session settings; background load during calibration distorts them (the table records the load average of each unit).");
             return ExitCodes.Ok;

@@ -27,7 +27,7 @@ public sealed class CheckTable(TextWriter output, bool withLatency, bool withPre
     {
         output.WriteLine("Memory figures are estimates (float32; training: activations kept at --train-batch plus 4 copies of every parameter).");
         if (anyLatency is { } l)
-            output.WriteLine($"Latency: CPU, {TerminalText.Safe(l.Processor)}, ONNX Runtime {l.RuntimeVersion}, {Formatting.Plural(l.Threads, "thread")}. It does not transfer to other hardware.");
+            output.WriteLine($"Latency: CPU, {TerminalText.Safe(l.Processor)}, ONNX Runtime {l.RuntimeVersion}, {Wording.Counted(l.Threads, "thread")}. It does not transfer to other hardware.");
         if (latencyTable is not null)
             output.WriteLine($"Predicted latency (from {TerminalText.Safe(latencyTable)}) holds only for the machine, ONNX Runtime version, thread count and " +
                              "session settings the table was calibrated under, and background load during calibration distorts it.");

@@ -53,7 +53,7 @@ public static class HtmlReportWriter
         w.WriteLine($"<h1>{Html.Text(page.Title)}</h1>");
         var genotypes = page.GenotypesPath is { } g ? $"; cells from <code>{Html.Text(g)}</code>" : "";
         var scores = page.Scores is { } j ? $"; scores from <code>{Html.Text(j.Name)}</code>" : "";
-        w.WriteLine($"<p class=\"lede\">{Html.Whole(s.Total)} check {Plural(s.Total, "record")} from <code>{Html.Text(page.ResultsName)}</code>{genotypes}{scores}</p>");
+        w.WriteLine($"<p class=\"lede\">{Html.Whole(s.Total)} check {Wording.Noun(s.Total, "record")} from <code>{Html.Text(page.ResultsName)}</code>{genotypes}{scores}</p>");
         w.WriteLine("</div>");
         w.WriteLine("<button id=\"theme-toggle\" type=\"button\">Switch theme</button>");
         w.WriteLine("</header>");
@@ -62,8 +62,6 @@ public static class HtmlReportWriter
     /// <summary>A status badge: the status as records spell it.</summary>
     public static string Badge(CheckStatus status) =>
         $"<span class=\"badge s-{status.Name()}\">{status.Name()}</span>";
-
-    public static string Plural(long count, string word) => count == 1 ? word : word + "s";
 
     /// <summary>"a, b, c and 4 more" (escaped, ids in code).</summary>
     public static string Ids(IEnumerable<string> ids, long total)

@@ -33,11 +33,11 @@ public static class OutcomeSection
         w.WriteLine("</div>");
 
         w.WriteLine("<ul class=\"facts\">");
-        w.WriteLine($"<li><b>{Html.Whole(s.Total)}</b> {HtmlReportWriter.Plural(s.Total, "record")}</li>");
+        w.WriteLine($"<li><b>{Html.Whole(s.Total)}</b> {Wording.Noun(s.Total, "record")}</li>");
         w.WriteLine($"<li><b>{Html.Whole(s.Points.Count)}</b> with params and MACs</li>");
         w.WriteLine($"<li><b>{Html.Whole(s.WithLatency)}</b> with latency measured</li>");
         w.WriteLine($"<li><b>{Html.Whole(page.Fronts.SelectMany(f => f.Members).Select(m => m.Id).Distinct(StringComparer.Ordinal).Count())}</b> " +
-            $"on {Html.Whole(page.Fronts.Count)} Pareto {HtmlReportWriter.Plural(page.Fronts.Count, "front")}</li>");
+            $"on {Html.Whole(page.Fronts.Count)} Pareto {Wording.Noun(page.Fronts.Count, "front")}</li>");
         if (page.Scores is not null) w.WriteLine($"<li><b>{Html.Whole(s.Total - s.UnscoredTotal)}</b> with scores</li>");
         if (s.Cached > 0) w.WriteLine($"<li><b>{Html.Whole(s.Cached)}</b> from the check cache</li>");
         w.WriteLine("</ul>");
@@ -98,13 +98,13 @@ public static class OutcomeSection
             var listed = s.Malformed.Take(10)
                 .Select(m => $"<code>{Html.Text(m.Place.ToString())}</code>: {Html.Text(m.Problem.TrimEnd('.'))}");
             var more = s.MalformedCount > 10 ? $"; and {s.MalformedCount - 10:N0} more" : "";
-            notes.Add((null, $"{Html.Whole(s.MalformedCount)} {HtmlReportWriter.Plural(s.MalformedCount, "line")} of the results file {(s.MalformedCount == 1 ? "is" : "are")} " +
+            notes.Add((null, $"{Html.Whole(s.MalformedCount)} {Wording.Noun(s.MalformedCount, "line")} of the results file {(s.MalformedCount == 1 ? "is" : "are")} " +
                 $"not a check record and {(s.MalformedCount == 1 ? "was" : "were")} skipped: {string.Join("; ", listed)}{more}."));
         }
         if (page.Scores is { } join)
         {
             notes.Add(("scores-join", $"Scores: {Html.Whole(join.Count)} ids in <code>{Html.Text(join.Name)}</code> with " +
-                $"{HtmlReportWriter.Plural(join.Metrics.Count, "metric")} {string.Join(", ", join.Metrics.Select(m => $"<code>{Html.Text(m)}</code>"))}."));
+                $"{Wording.Noun(join.Metrics.Count, "metric")} {string.Join(", ", join.Metrics.Select(m => $"<code>{Html.Text(m)}</code>"))}."));
             if (join.NotInResultsCount > 0)
                 notes.Add(("scores-without-record", $"{Html.Whole(join.NotInResultsCount)} {(join.NotInResultsCount == 1 ? "id has" : "ids have")} scores but no record here: " +
                     $"{HtmlReportWriter.Ids(join.NotInResults, join.NotInResultsCount)}."));
@@ -116,11 +116,11 @@ public static class OutcomeSection
             }
         }
         if (s.TrivialLeftOut > 0)
-            notes.Add(("trivial-left-out", $"{Html.Whole(s.TrivialLeftOut)} ok {HtmlReportWriter.Plural(s.TrivialLeftOut, "candidate")} with the <code>trivial-cell</code> note " +
+            notes.Add(("trivial-left-out", $"{Html.Whole(s.TrivialLeftOut)} ok {Wording.Noun(s.TrivialLeftOut, "candidate")} with the <code>trivial-cell</code> note " +
                 "(no op with trainable weights in the cell) are left out of the Pareto fronts and drawn as hollow circles; " +
                 "<code>cellc report --include-trivial</code> keeps them."));
         else if (s.IncludeTrivial && s.Trivial > 0)
-            notes.Add(("trivial-included", $"{Html.Whole(s.Trivial)} {HtmlReportWriter.Plural(s.Trivial, "candidate")} with the <code>trivial-cell</code> note are kept on the fronts (<code>--include-trivial</code>)."));
+            notes.Add(("trivial-included", $"{Html.Whole(s.Trivial)} {Wording.Noun(s.Trivial, "candidate")} with the <code>trivial-cell</code> note are kept on the fronts (<code>--include-trivial</code>)."));
         if (s.BudgetSets > 1)
             notes.Add((null, $"The records carry {s.BudgetSets} different sets of budgets (results of several runs?); the charts draw the most common."));
         if (page.TableCapped)

@@ -1,6 +1,8 @@
 using System.Text.Json;
 using System.Diagnostics;
 using System.Globalization;
+using System.Security.Cryptography;
+using System.Text;
 using CellCompiler.Compilation;
 using CellCompiler.Figures;
 using CellCompiler.Graph;
@@ -183,16 +185,41 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         if (options.Static)
         {
             // Static checks only read the cache: a static evaluation is cheaper to make again than to store.
+            // Another spelling's entry keeps its verdict, but its figures are recounted for this spelling.
+            if (evaluation is not null && evaluation.Spelling != SpellingOf(genotype))
+            {
+                var own = EvaluateStatic(genotype, hashes);
+                evaluation = own.Figures is null ? own
+                    : evaluation with { Figures = own.Figures, ActivationBytesPerSample = own.ActivationBytesPerSample, OnnxBytes = null };
+            }
             evaluation ??= EvaluateStatic(genotype, hashes);
             return new Prepared(hashes, warnings, notes, evaluation, cached, null, null, CountUnits(genotype, liveness, evaluation));
         }
+        var spelling = SpellingOf(genotype);
         if (evaluation is null || (!evaluation.SmokeTested && WouldRun(evaluation)))
         {
             cached = false;
             (evaluation, model) = Evaluate(genotype, hashes);
+            evaluation = evaluation with { Spelling = spelling };
             // Only networks that compiled are cached: a compile failure's reason names this spelling's
             // own JSON paths (every dead cell has the same hash), and finding it again is cheap.
             if (evaluation.Figures is not null) cache?.StoreEvaluation(key, evaluation);
+        }
+        else if (evaluation.Spelling != spelling)
+        {
+            // Another spelling of the same network filled the cache: its verdict holds, but the file
+            // size and the peak activation follow the spelling, so this one is compiled (not run).
+            CompiledModel compiled;
+            using (_memory.Reserve(CompileEstimate(genotype)))
+                compiled = Compiler.Compile(genotype, options.Skeleton, options.Compile, hashes);
+            evaluation = evaluation with
+            {
+                Figures = compiled.Figures,
+                ActivationBytesPerSample = TrainingMemory.ActivationBytesPerSample(compiled.Network),
+                OnnxBytes = compiled.OnnxBytes.LongLength,
+                Spelling = spelling,
+            };
+            model = compiled.OnnxBytes;
         }
 
         string? latencyKey = null;
@@ -213,6 +240,10 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         _predictor is not null && evaluation.Works && evaluation.Figures is not null
             ? _predictor.Count(genotype, liveness, options.Skeleton)
             : null;
+
+    /// <summary>Identifies a genotype's exact spelling: the text its model records (names, order, declarations).</summary>
+    private static string SpellingOf(Genotype genotype) =>
+        Convert.ToHexString(SHA256.HashData(Encoding.UTF8.GetBytes(Compiler.RecordedGenotype(genotype))));
 
     private long TrainMemory(Evaluation evaluation) =>
         TrainingMemory.EstimateBytes(evaluation.ActivationBytesPerSample!.Value, evaluation.Figures!.Params, evaluation.Figures.Buffers, options.TrainBatch);
