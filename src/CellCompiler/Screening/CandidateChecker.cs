@@ -179,47 +179,50 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         var key = $"{hashes.NetworkHash}|{_settingsKey}";
 
         byte[]? model = null;
-        var evaluation = cache?.FindEvaluation(key);
-        if (evaluation?.Figures is null) evaluation = null; // entries of older builds without figures are not trusted
-        var cached = evaluation is not null;
+        Evaluation? evaluation = null;
+        var found = cache?.FindEvaluation(key);
+        if (found?.Figures is null) found = null; // entries without figures are not trusted
         if (options.Static)
         {
             // Static checks only read the cache: a static evaluation is cheaper to make again than to store.
             // Another spelling's entry keeps its verdict, but its figures are recounted for this spelling.
-            if (evaluation is not null && evaluation.Spelling != SpellingOf(genotype))
+            if (found is not null && found.Spelling != SpellingOf(genotype))
             {
                 var own = EvaluateStatic(genotype, hashes);
-                evaluation = own.Figures is null ? own
-                    : evaluation with { Figures = own.Figures, ActivationBytesPerSample = own.ActivationBytesPerSample, OnnxBytes = null };
+                found = own.Figures is null ? own : found with { Figures = own.Figures, ActivationBytesPerSample = own.ActivationBytesPerSample, OnnxBytes = null };
             }
-            evaluation ??= EvaluateStatic(genotype, hashes);
-            return new Prepared(hashes, warnings, notes, evaluation, cached, null, null, CountUnits(genotype, liveness, evaluation));
+            var result = found ?? EvaluateStatic(genotype, hashes);
+            return new Prepared(hashes, warnings, notes, result, found is not null, null, null, CountUnits(genotype, liveness, result));
         }
         var spelling = SpellingOf(genotype);
-        if (evaluation is null || (!evaluation.SmokeTested && WouldRun(evaluation)))
+        if (found is not null && found.Spelling != spelling)
         {
-            cached = false;
+            // Another spelling of the same network filled the cache: its run verdict holds, but the file
+            // size and the peak activation follow the spelling, so this one is compiled (not run).
+            var (compiled, compiledModel) = Compile(genotype, hashes);
+            found = compiled.Figures is null ? null : found with
+            {
+                Figures = compiled.Figures,
+                ActivationBytesPerSample = compiled.ActivationBytesPerSample,
+                OnnxBytes = compiled.OnnxBytes,
+                Spelling = spelling,
+            };
+            model = compiledModel?.OnnxBytes;
+        }
+        if (found is not null)
+        {
+            // Budgets and limits are judged afresh on this spelling's figures, exactly as a run without the cache would.
+            if (NotRun(found) is { } notRun) evaluation = notRun;
+            else if (found.SmokeTested) evaluation = found;
+        }
+        var cached = evaluation is not null;
+        if (evaluation is null)
+        {
             (evaluation, model) = Evaluate(genotype, hashes);
             evaluation = evaluation with { Spelling = spelling };
             // Only networks that compiled are cached: a compile failure's reason names this spelling's
             // own JSON paths (every dead cell has the same hash), and finding it again is cheap.
             if (evaluation.Figures is not null) cache?.StoreEvaluation(key, evaluation);
-        }
-        else if (evaluation.Spelling != spelling)
-        {
-            // Another spelling of the same network filled the cache: its verdict holds, but the file
-            // size and the peak activation follow the spelling, so this one is compiled (not run).
-            CompiledModel compiled;
-            using (_memory.Reserve(CompileEstimate(genotype)))
-                compiled = Compiler.Compile(genotype, options.Skeleton, options.Compile, hashes);
-            evaluation = evaluation with
-            {
-                Figures = compiled.Figures,
-                ActivationBytesPerSample = TrainingMemory.ActivationBytesPerSample(compiled.Network),
-                OnnxBytes = compiled.OnnxBytes.LongLength,
-                Spelling = spelling,
-            };
-            model = compiled.OnnxBytes;
         }
 
         string? latencyKey = null;
@@ -248,10 +251,17 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     private long TrainMemory(Evaluation evaluation) =>
         TrainingMemory.EstimateBytes(evaluation.ActivationBytesPerSample!.Value, evaluation.Figures!.Params, evaluation.Figures.Buffers, options.TrainBatch);
 
-    /// <summary>Whether these options run a network that a cached evaluation did not run.</summary>
-    private bool WouldRun(Evaluation evaluation) =>
-        TooLargeToRun(evaluation.Figures!) is null
-        && (options.RunOverBudget || Judge(evaluation.Figures!, TrainMemory(evaluation), null, options, null).Item1 == CheckStatus.Ok);
+    /// <summary>
+    /// The evaluation of a compiled network that this run does not execute: over a budget that needs
+    /// no run (unless --run-over-budget), or too large for this machine. Null when it runs.
+    /// </summary>
+    private Evaluation? NotRun(Evaluation compiled)
+    {
+        var notRun = compiled with { Failure = null, FailureReason = null, FailureKind = null, SmokeTested = false };
+        if (!options.RunOverBudget && Judge(compiled.Figures!, TrainMemory(compiled), null, options).Item1 != CheckStatus.Ok)
+            return notRun;
+        return TooLargeToRun(compiled.Figures!) is { } tooLarge ? notRun with { FailureReason = tooLarge } : null;
+    }
 
     /// <summary>
     /// Memory to run at batch 2, estimated: the model bytes three times (ours, the runtime's copy and
@@ -284,52 +294,16 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             : null;
     }
 
-    private static string Gigabytes(long bytes) => Significant(bytes / 1e9);
-
-    /// <summary>
-    /// Compiles under the memory guard; a network that cannot be formed is the evaluation that says so
-    /// (<paramref name="failed"/>), anything else is what <paramref name="compile"/> returns.
-    /// </summary>
-    private T CompileGuarded<T>(Genotype genotype, Func<T> compile, Func<Evaluation, T> failed)
-    {
-        using var reservation = _memory.Reserve(CompileEstimate(genotype));
-        try
-        {
-            return compile();
-        }
-        catch (DeadCellException dead)
-        {
-            return failed(new Evaluation(CheckStatus.Broken, dead.Message, "dead cell", null, null, null, null));
-        }
-        catch (CompileException e)
-        {
-            return failed(new Evaluation(CheckStatus.Invalid, e.Message, "invalid: cannot form the network", null, null, null, null));
-        }
-    }
-
-    /// <summary>Compile without weights or ONNX bytes, and count: all a static check needs.</summary>
-    private Evaluation EvaluateStatic(Genotype genotype, GenotypeHashes hashes) =>
-        CompileGuarded(genotype, () =>
-        {
-            var model = Compiler.CompileFigures(genotype, options.Skeleton, options.Compile, hashes);
-            var activation = TrainingMemory.ActivationBytesPerSample(model.Network);
-            return new Evaluation(null, null, null, model.OutputShape.Dims, model.Figures, activation, null, SmokeTested: false);
-        }, failed => failed);
+    private static string Gigabytes(long bytes) => Wording.Significant(bytes / 1e9);
 
     /// <summary>Compile and smoke-test: the cacheable part of a check.</summary>
     private (Evaluation, byte[]?) Evaluate(Genotype genotype, GenotypeHashes hashes)
     {
-        var (model, failure) = CompileGuarded<(CompiledModel?, Evaluation?)>(genotype,
-            () => (Compiler.Compile(genotype, options.Skeleton, options.Compile, hashes), null), failed => (null, failed));
-        if (failure is not null) return (failure, null);
-        var activation = TrainingMemory.ActivationBytesPerSample(model!.Network);
-        var compiled = new Evaluation(null, null, null, model.OutputShape.Dims, model.Figures, activation, model.OnnxBytes.LongLength, SmokeTested: false);
+        var (compiled, model) = Compile(genotype, hashes);
+        if (model is null) return (compiled, null);
         // Budgets that need no run are judged first: a candidate already over one is not run at all
         // unless the user asks for it.
-        if (!options.RunOverBudget && Judge(model.Figures, TrainMemory(compiled), null, options, null).Item1 != CheckStatus.Ok)
-            return (compiled, model.OnnxBytes);
-        if (TooLargeToRun(model.Figures) is { } tooLarge)
-            return (compiled with { FailureReason = tooLarge }, model.OnnxBytes);
+        if (NotRun(compiled) is { } notRun) return (notRun, model.OnnxBytes);
         SmokeVerdict verdict;
         using (_memory.Reserve(RunEstimate(model.Figures)))
             verdict = SmokeTest.Run(model.OnnxBytes, model.InputShape.Dims, model.OutputShape.Dims, options.Compile.Seed);
@@ -341,6 +315,49 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             SmokeTested = true,
         };
         return (evaluation, model.OnnxBytes);
+    }
+
+    /// <summary>Compile without weights or ONNX bytes, and count: all a static check needs (failures as in <see cref="Compile"/>).</summary>
+    private Evaluation EvaluateStatic(Genotype genotype, GenotypeHashes hashes)
+    {
+        using var reservation = _memory.Reserve(CompileEstimate(genotype));
+        try
+        {
+            var model = Compiler.CompileFigures(genotype, options.Skeleton, options.Compile, hashes);
+            var activation = TrainingMemory.ActivationBytesPerSample(model.Network);
+            return new Evaluation(null, null, null, model.OutputShape.Dims, model.Figures, activation, null, SmokeTested: false);
+        }
+        catch (DeadCellException dead)
+        {
+            return new Evaluation(CheckStatus.Broken, dead.Message, "dead cell", null, null, null, null);
+        }
+        catch (CompileException e)
+        {
+            return new Evaluation(CheckStatus.Invalid, e.Message, "invalid: cannot form the network", null, null, null, null);
+        }
+    }
+
+    /// <summary>The compile alone: figures (not run yet), or why the network cannot be formed.</summary>
+    private (Evaluation, CompiledModel?) Compile(Genotype genotype, GenotypeHashes hashes)
+    {
+        CompiledModel model;
+        using (var reservation = _memory.Reserve(CompileEstimate(genotype)))
+        {
+            try
+            {
+                model = Compiler.Compile(genotype, options.Skeleton, options.Compile, hashes);
+            }
+            catch (DeadCellException dead)
+            {
+                return (new Evaluation(CheckStatus.Broken, dead.Message, "dead cell", null, null, null, null), null);
+            }
+            catch (CompileException e)
+            {
+                return (new Evaluation(CheckStatus.Invalid, e.Message, "invalid: cannot form the network", null, null, null, null), null);
+            }
+        }
+        var activation = TrainingMemory.ActivationBytesPerSample(model.Network);
+        return (new Evaluation(null, null, null, model.OutputShape.Dims, model.Figures, activation, model.OnnxBytes.LongLength, SmokeTested: false), model);
     }
 
     private static string LatencyKey(LatencySettings s) =>
@@ -387,7 +404,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
 
     /// <summary>Every exceeded budget, named with the option that set it and by how much it is exceeded.</summary>
     public static (CheckStatus, string?, string?) Judge(NetworkFigures figures, long trainMemoryBytes, LatencyReport? latency, CheckOptions options,
-        double? predictedMs)
+        double? predictedMs = null)
     {
         var budgets = options.Budgets;
         var over = new List<string>();
@@ -395,8 +412,8 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         void Compare(string what, double actual, double? limit, string option, string unit, bool count = false)
         {
             if (limit is not { } max || actual <= max) return;
-            var (shownActual, shownMax) = count ? (Count(actual), Count(max)) : (Significant(actual), Significant(max));
-            over.Add($"{what} {shownActual}{unit} exceeds {option} {shownMax}{unit} by {Significant(100 * (actual - max) / max)}%");
+            var (shownActual, shownMax) = count ? (Count(actual), Count(max)) : (Wording.Significant(actual), Wording.Significant(max));
+            over.Add($"{what} {shownActual}{unit} exceeds {option} {shownMax}{unit} by {Wording.Significant(100 * (actual - max) / max)}%");
             kinds.Add("over " + option);
         }
         Compare("params", figures.Params, budgets.MaxParams, "--max-params", "", count: true);
@@ -414,14 +431,4 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
 
     /// <summary>A whole count with thousands separators (a budget of 5M reads "5,000,000").</summary>
     private static string Count(double value) => Math.Round(value).ToString("N0", CultureInfo.InvariantCulture);
-
-    /// <summary>Three significant digits ("3.45", "36.0", "1,234"), so that figures side by side read alike; never rounds a small value to 0.</summary>
-    public static string Significant(double value)
-    {
-        if (value == 0 || !double.IsFinite(value)) return value.ToString(CultureInfo.InvariantCulture);
-        var magnitude = (int)Math.Floor(Math.Log10(Math.Abs(value)));
-        if (magnitude >= 2) return Math.Round(value).ToString("N0", CultureInfo.InvariantCulture);
-        var decimals = 2 - magnitude;
-        return Math.Round(value, decimals).ToString("F" + decimals, CultureInfo.InvariantCulture);
-    }
 }
