@@ -14,6 +14,8 @@ var commands = new CommandSet(
         ("bench", BenchCommand.Create),
         ("merge", MergeCommand.Create),
         ("sample", SampleCommand.Create),
+        ("space", SpaceCommand.Create),
+        ("mutate", MutateCommand.Create),
         ("scale", ScaleCommand.Create),
         ("render", RenderCommand.Create),
         ("inspect", InspectCommand.Create),
