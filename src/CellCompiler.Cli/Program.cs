@@ -10,6 +10,7 @@ var commands = new CommandSet(
     "Exit codes: 0 all is well; 1 the work ran but a candidate failed (e.g. a dead cell); 2 bad input or command line.",
     [
         ("compile", CompileCommand.Create),
+        ("export-torch", ExportTorchCommand.Create),
         ("check", CheckCommand.Create),
         ("bench", BenchCommand.Create),
         ("merge", MergeCommand.Create),

@@ -47,8 +47,19 @@ public static class Compiler
             new("network_hash", hashes.NetworkHash),
             new("skeleton", skeleton.ToJson()),
             new("seed", options.Seed.ToString(System.Globalization.CultureInfo.InvariantCulture)),
+            // With the skeleton, the seed and the opset, enough to compile the same bytes again from the file alone.
+            new("genotype", RecordedGenotype(genotype)),
+            new("cellc_version", BuildInfo.Version),
+            new("cellc_commit", BuildInfo.Commit),
         };
         var bytes = OnnxEmitter.Emit(shaped, new EmitOptions(options.Seed, options.Opset, genotype.Name, metadata));
         return new CompiledModel(genotype.Name, hashes.Hash, hashes.NetworkHash, skeleton, options, shaped, figures, network.Warnings, bytes);
     }
+
+    /// <summary>
+    /// The genotype as a model records it (metadata key `genotype`): compact genotype/1 JSON with its
+    /// name and declarations. The search's id and meta are bookkeeping, not network: they stay in the
+    /// records, so one genotype screened under two ids (or saved as a file without one) is one model.
+    /// </summary>
+    public static string RecordedGenotype(Genotype genotype) => GenotypeJson.Serialize(genotype with { Id = null, Meta = null });
 }

@@ -100,6 +100,26 @@ public readonly record struct NodePath(string Value)
         return motifs;
     }
 
+    /// <summary>
+    /// The PyTorch module path of a node (`cellc export-torch`): each segment loses its ":op" and
+    /// "/" becomes ".", so <c>stage1/cell0/e2:reef/e0:anemone/e1:dwconv3x3/conv</c> is
+    /// <c>stage1.cell0.e2.e0.e1.conv</c>. Back the other way, segment e{i} of a motif is the path
+    /// segment e{i}:{op} with op the genotype's op on that motif's edge i.
+    /// </summary>
+    public static string ModulePath(string nodeName) => string.Join('.', ModuleSegments(nodeName));
+
+    /// <summary>The segments of <see cref="ModulePath"/>; empty segments (a relative path's leading "/") are skipped.</summary>
+    public static IReadOnlyList<string> ModuleSegments(string nodeName)
+    {
+        var segments = new List<string>();
+        foreach (var segment in nodeName.Split(Separator, StringSplitOptions.RemoveEmptyEntries))
+        {
+            var colon = segment.IndexOf(':');
+            segments.Add(colon < 0 ? segment : segment[..colon]);
+        }
+        return segments;
+    }
+
     private static int? Number(string segment, string prefix) =>
         segment.StartsWith(prefix, StringComparison.Ordinal) && segment.Length > prefix.Length && IsDigits(segment.AsSpan(prefix.Length))
         && int.TryParse(segment.AsSpan(prefix.Length), NumberStyles.None, CultureInfo.InvariantCulture, out var n) ? n : null;

@@ -17,5 +17,6 @@ public static class OnnxVersions
     };
 
     public const string ProducerName = "cellc";
-    public const string ProducerVersion = "0.1.0";
+    /// <summary>This build's version, the one `cellc --version` prints.</summary>
+    public static string ProducerVersion => BuildInfo.Version;
 }
