@@ -78,8 +78,9 @@ public sealed class Mutator(MutationOptions options)
                 lastLimit = e.Problem;
                 continue;
             }
-            if (parentHash is not null)
+            if (options.Distinct)
             {
+                // A dead parent has no network: any live mutant differs from it.
                 var hash = NetworkHashOrDead(mutant);
                 if (hash is null) { dead++; continue; }
                 if (hash == parentHash) { same++; continue; }

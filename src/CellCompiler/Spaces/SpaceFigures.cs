@@ -1,9 +1,7 @@
 using System.Collections.Concurrent;
-using CellCompiler.Figures;
+using CellCompiler.Compilation;
 using CellCompiler.Graph;
 using CellCompiler.Input;
-using CellCompiler.Lowering;
-using CellCompiler.Shapes;
 
 namespace CellCompiler.Spaces;
 
@@ -13,9 +11,8 @@ namespace CellCompiler.Spaces;
 public sealed record FigureSummary(int Measured, int Failures, string? FirstFailure, Percentiles? Params, Percentiles? Macs);
 
 /// <summary>
-/// The cost figures of sampled genotypes, without emitting ONNX: lowering, shape inference and the
-/// figure counter, the same public stages <c>compile</c> runs (Compilation has no figures-only entry
-/// yet, so this stage calls them itself, with the same expanded-size bound as <c>Compiler.Compile</c>).
+/// The cost figures of sampled genotypes through <see cref="Compiler.Figures"/>: the stages and bounds
+/// of <c>compile</c> without emitting ONNX.
 /// Samples of one network share its figures (params and MACs depend on the network only), so each
 /// distinct network is counted once.
 /// </summary>
@@ -61,14 +58,9 @@ public static class SpaceFigures
 
     private static Counted Count(Genotype genotype, Skeleton skeleton)
     {
-        // The bound Compiler.Compile applies: the skeleton's cell count multiplies the expanded cell.
-        var cells = skeleton.Stages.Sum(s => (long)s.Cells);
-        var ops = ExpansionSize.CellPrimitiveOps(genotype);
-        if (ops * cells > Limits.MaxExpandedPrimitiveOps)
-            return new Counted(0, 0, $"the expanded network ({cells} cells of up to {ops:N0} primitive ops each) exceeds the limit of {Limits.MaxExpandedPrimitiveOps:N0} primitive ops");
         try
         {
-            var figures = FigureCounter.Count(ShapeInference.Infer(Lowerer.Lower(genotype, skeleton)));
+            var figures = Compiler.Figures(genotype, skeleton);
             return new Counted(figures.Params, figures.Macs, null);
         }
         catch (CompileException e)
