@@ -105,3 +105,21 @@ public sealed class SpaceCountTests
         Assert.Throws<ArgumentOutOfRangeException>(() => seeker.Seek(729));
     }
 }
+
+/// <summary>The README's space/1 example parses and has the count the README states.</summary>
+public sealed class SpaceReadmeTests
+{
+    [Fact]
+    public void TheReadmeExampleIsAValidSpaceOfTheStatedSize()
+    {
+        var readme = File.ReadAllText(Path.Combine(Support.RepoPaths.Root, "README.md"));
+        var section = readme[readme.IndexOf("### Search space (`space/1`, JSON)", StringComparison.Ordinal)..];
+        var start = section.IndexOf("```json\n", StringComparison.Ordinal) + "```json\n".Length;
+        var json = section[start..section.IndexOf("```", start, StringComparison.Ordinal)];
+        var space = SpaceFiles.Parse(json);
+        Assert.Equal("tidepool-two-level", space.Name);
+        Assert.Equal(BigInteger.Pow(BigInteger.Pow(6, 6), 6) * BigInteger.Pow(8, 10), space.Genotypes);
+        Assert.Contains("(6^6)^6 * 8^10, about 1.1e37", section, StringComparison.Ordinal);
+        Assert.InRange((double)space.Genotypes, 1.1e37, 1.15e37);
+    }
+}

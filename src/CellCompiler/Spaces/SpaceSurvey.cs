@@ -53,6 +53,9 @@ public static class SpaceSurveyor
         var clock = System.Diagnostics.Stopwatch.StartNew();
         var workers = options.WorkerCount;
         var exact = options.EnumerateLimit > 0 && space.Genotypes <= options.EnumerateLimit;
+        if (!exact && options.Samples == 0)
+            throw new InputException("command line", "--samples",
+                $"the space has {space.Genotypes} genotypes, more than --enumerate-limit {options.EnumerateLimit:N0}, so its counts are estimated from samples: give --samples 1 or more");
 
         EnumerationResult? enumeration = null;
         if (exact)
