@@ -51,13 +51,13 @@ public sealed partial class ReportTests(CheckedPopulation run) : IClassFixture<C
 {
     private const string Chromium = "/usr/bin/chromium";
 
-    private static readonly string[] AllCharts = ["chart-params-macs", "chart-params-latency", "chart-params-hist", "chart-macs-hist"];
+    private static readonly string[] AllCharts = ["chart-latency-macs", "chart-params-latency", "chart-params-macs", "chart-params-hist", "chart-macs-hist"];
 
     /// <summary>Namespace names, never fetched: the only http(s) strings a self-contained page may hold.</summary>
     private static readonly string[] NamespaceUris =
         ["http://www.w3.org/2000/svg", "http://www.w3.org/1999/xlink", "http://www.w3.org/1999/xhtml"];
 
-    private sealed record Expected(string Id, string Status, long? Params, long? Macs, double? Latency);
+    private sealed record Expected(string Id, string Status, long? Params, long? Macs, double? Latency, bool Trivial);
 
     private static List<Expected> Records(string resultsPath) =>
         File.ReadLines(resultsPath).Where(l => l.Trim().Length > 0).Select(line =>
@@ -65,15 +65,25 @@ public sealed partial class ReportTests(CheckedPopulation run) : IClassFixture<C
             var r = JsonDocument.Parse(line).RootElement;
             long? Whole(string name) => r.TryGetProperty(name, out var v) && v.ValueKind == JsonValueKind.Number ? v.GetInt64() : null;
             double? latency = r.TryGetProperty("latency_ms", out var l) && l.ValueKind == JsonValueKind.Number ? l.GetDouble() : null;
-            return new Expected(r.GetProperty("id").GetString()!, r.GetProperty("status").GetString()!, Whole("params"), Whole("macs"), latency);
+            var trivial = r.TryGetProperty("notes", out var notes) && notes.EnumerateArray().Any(n => n.GetString() == "trivial-cell");
+            return new Expected(r.GetProperty("id").GetString()!, r.GetProperty("status").GetString()!, Whole("params"), Whole("macs"), latency, trivial);
         }).ToList();
 
+    /// <summary>
+    /// Every candidate on a front the page shows (params/MACs, and with latency params/latency and
+    /// MACs/latency), each once, computed here on their own (<see cref="ReportScoresTests.Front"/>).
+    /// </summary>
     private static List<string> FrontIds(IEnumerable<Expected> records)
     {
-        var front = new ParetoFront();
-        foreach (var r in records.Where(r => r.Status == "ok" && r.Params is not null && r.Macs is not null))
-            front.Add(r.Id, r.Params!.Value, r.Macs!.Value);
-        return front.Points.Select(p => p.Id).ToList();
+        var ok = records.Where(r => r.Status == "ok" && !r.Trivial && r.Params is not null && r.Macs is not null).ToList();
+        var fronts = new List<List<string>> { ReportScoresTests.Front(ok.Select(r => (r.Id, (double)r.Params!.Value, (double)r.Macs!.Value))) };
+        var timed = ok.Where(r => r.Latency is not null).ToList();
+        if (timed.Count > 0)
+        {
+            fronts.Add(ReportScoresTests.Front(timed.Select(r => (r.Id, (double)r.Macs!.Value, r.Latency!.Value))));
+            fronts.Add(ReportScoresTests.Front(timed.Select(r => (r.Id, (double)r.Params!.Value, r.Latency!.Value))));
+        }
+        return fronts.SelectMany(f => f).Distinct().ToList();
     }
 
     private ProcessResult Report(params string[] args) => ProcessRunner.Cellc(["report", .. args], null, run.Folder.Path);
@@ -161,7 +171,7 @@ public sealed partial class ReportTests(CheckedPopulation run) : IClassFixture<C
         // Top reasons, grouped as `cellc check` groups them in its own summary.
         Assert.Contains(">dead cell<", dom);
         Assert.Contains(">invalid: unknown op<", dom);
-        // The Pareto front of the ok candidates (params, MACs): one card each.
+        // Every candidate on a front the page shows: one card each.
         var front = FrontIds(records);
         Assert.NotEmpty(front);
         foreach (var id in front)
@@ -299,17 +309,19 @@ public sealed partial class ReportTests(CheckedPopulation run) : IClassFixture<C
         Assert.Empty(report.Warnings);
         Assert.Equal(front.Order(), drawn.Order());
         Assert.Equal(front.Count, report.Pictures);
-        foreach (var (id, index) in front.Select((id, i) => (id, i)))
+        foreach (var id in front)
         {
             var picture = Regex.Match(report.Html, $"<figure class=\"cell-picture[^\"]*\" data-id=\"{Regex.Escape(id)}\">(.*?)</figure>", RegexOptions.Singleline);
             Assert.True(picture.Success, $"no picture for {id}");
             Assert.Contains($"STUB-CELL:{id}", picture.Groups[1].Value);
             // Inlined: no XML declaration; ids made unique on the page; a viewBox so it scales.
             Assert.DoesNotContain("<?xml", picture.Groups[1].Value);
-            Assert.Contains($"id=\"cell{index}-box\"", picture.Groups[1].Value);
-            Assert.Contains($"url(#cell{index}-box)", picture.Groups[1].Value);
+            var prefix = Regex.Match(picture.Groups[1].Value, "id=\"(cell[0-9]+-)box\"").Groups[1].Value;
+            Assert.NotEmpty(prefix);
+            Assert.Contains($"url(#{prefix}box)", picture.Groups[1].Value);
             Assert.Contains("viewBox=\"0 0 40 20\"", picture.Groups[1].Value);
         }
+        Assert.Equal(front.Count, Regex.Matches(report.Html, "id=\"(cell[0-9]+-)box\"").Select(m => m.Groups[1].Value).Distinct().Count());
 
         // Ids not in the population are skipped, with a warning.
         var elsewhere = run.Folder.Write("other-population.jsonl",

@@ -104,9 +104,9 @@ public static class CheckCommand
                 if (table is not null) summaryOut.WriteLine();
                 var resumed = outcome.Summary.Resumed;
                 if (resumed > 0)
-                    summaryOut.WriteLine($"Resumed: {Formatting.Plural(resumed, "record")} {(resumed == 1 ? "was" : "were")} already in {request.OutPath}; the summary covers them too.");
+                    summaryOut.WriteLine($"Resumed: {Wording.Counted(resumed, "record")} {(resumed == 1 ? "was" : "were")} already in {request.OutPath}; the summary covers them too.");
                 if (outcome.RepeatedIds > 0)
-                    summaryOut.WriteLine($"Repeated ids: {Formatting.Plural(outcome.RepeatedIds, "candidate")} used an id seen before (see the warnings).");
+                    summaryOut.WriteLine($"Repeated ids: {Wording.Counted(outcome.RepeatedIds, "candidate")} used an id seen before (see the warnings).");
                 ScreeningReport.Write(summaryOut, outcome.Summary, outcome.Elapsed);
                 CheckTable.WriteCautions(summaryOut, outcome.AnyLatency);
             }

@@ -148,10 +148,10 @@ public static class MergeCommand
         var from = report.Population is null
             ? "no population given"
             : $"{report.Expected:N0} ids expected from {report.Population}";
-        to.WriteLine($"merge: wrote {Formatting.Plural(report.Records, "record")} to {TerminalText.Safe(report.Output)} ({TerminalText.Safe(from)})");
+        to.WriteLine($"merge: wrote {Wording.Counted(report.Records, "record")} to {TerminalText.Safe(report.Output)} ({TerminalText.Safe(from)})");
         foreach (var s in report.Shards)
         {
-            var parts = new List<string> { Formatting.Plural(s.Lines, "line"), $"{s.Kept:N0} kept" };
+            var parts = new List<string> { Wording.Counted(s.Lines, "line"), $"{s.Kept:N0} kept" };
             if (s.Duplicates > 0) parts.Add($"{s.Duplicates:N0} duplicated");
             if (s.Malformed > 0) parts.Add($"{s.Malformed:N0} malformed");
             if (s.Partial > 0) parts.Add("last line cut");

@@ -27,9 +27,10 @@ public static class RenderCommand
         format.AcceptOnlyFromAmong("svg", "dot");
 
         var command = new Command("render",
-            "Draw the cell and every motif it uses: nodes left to right in topological order, edges labelled with their op, " +
-            "merges as diamonds, dead nodes and edges faded; unused and dead motifs are listed, not drawn. " +
-            "SVG (made in-process) or Graphviz DOT. Exit 2 on bad input.");
+            "Draw the cell and every motif it uses: nodes left to right in topological order, numbered, edges labelled with their op " +
+            "in their kind family's colour and line pattern, merges as diamonds, dead nodes and edges faded; unused and dead motifs " +
+            "are listed, not drawn; a key names each family and every declared primitive with its parameters. " +
+            "SVG (made in-process, light and dark) or Graphviz DOT with the same content. Exit 2 on bad input.");
         command.Arguments.Add(genotype);
         command.Options.Add(output);
         command.Options.Add(format);

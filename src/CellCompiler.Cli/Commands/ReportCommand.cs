@@ -28,6 +28,23 @@ public static class ReportCommand
             HelpName = "POPULATION.jsonl",
         };
         var title = new Option<string?>("--title") { Description = "The page title (default: \"Screening report: \" and the results file's name).", HelpName = "TEXT" };
+        var scores = new Option<string?>("--scores")
+        {
+            Description = "Metrics brought back for candidates (e.g. accuracy after training): JSON Lines of {\"id\": ..., \"<metric>\": number, ...}, " +
+                "joined to the records by id. Ids on one side only are reported. A bad line is exit 2 with its file and line.",
+            HelpName = "SCORES.jsonl",
+        };
+        var objective = new Option<string[]>("--objective")
+        {
+            Description = "Weigh a metric against cost: its Pareto fronts against params, MACs and latency are drawn and listed, and it becomes a " +
+                "table column. NAME is a metric of --scores or a numeric field of the records' meta; :max (the default) or :min says which way is better. Repeatable.",
+            HelpName = "NAME[:max|min]",
+            DefaultValueFactory = _ => [],
+        };
+        var includeTrivial = new Option<bool>("--include-trivial")
+        {
+            Description = "Keep cells with no trainable op (the trivial-cell note) on the Pareto fronts; by default they are drawn but left out.",
+        };
         var tableRows = new Option<int>("--table-rows")
         {
             Description = "At most this many rows in the candidate table; past it, the first by status (ok first) then params. Counts and charts cover every record.",
@@ -37,10 +54,11 @@ public static class ReportCommand
 
         var command = new Command("report",
             "Write one self-contained HTML page (no network needed to view it) from `cellc check --json` output: counts by status " +
-            "and top reasons, params against MACs and against latency p50 with the Pareto front, histograms of params and MACs, " +
-            "the Pareto-front cells (with --genotypes) and a sortable table of candidates. Exit 2 on unreadable input or no records.");
+            "and top reasons; latency against MACs and params, params against MACs, with their Pareto fronts and the run's budgets as " +
+            "lines; histograms of params and MACs; with --scores and --objective, each objective against cost; every front listed, " +
+            "its cells drawn (with --genotypes); a sortable table of candidates. Exit 2 on unreadable input or no records.");
         command.Arguments.Add(results);
-        foreach (var option in new Option[] { output, genotypes, title, tableRows })
+        foreach (var option in new Option[] { output, genotypes, scores, objective, includeTrivial, title, tableRows })
             command.Options.Add(option);
 
         command.SetAction(parse =>
@@ -51,11 +69,17 @@ public static class ReportCommand
             if (Directory.Exists(outPath))
                 throw new OutputException($"{outPath}: is a folder; give the report file's name");
             var resultsPath = parse.GetValue(results)!;
+            var objectives = parse.GetValue(objective)!.Select(text => Objective.Parse(text, Origin)).ToList();
+            var repeated = objectives.GroupBy(o => o.Name, StringComparer.Ordinal).FirstOrDefault(g => g.Count() > 1);
+            if (repeated is not null) throw new InputException(Origin, "--objective", $"'{repeated.Key}' is given more than once");
             var report = HtmlReport.Build(resultsPath, new ReportOptions
             {
                 Title = parse.GetValue(title),
                 GenotypesPath = parse.GetValue(genotypes),
                 DrawCell = drawCell,
+                ScoresPath = parse.GetValue(scores),
+                Objectives = objectives,
+                IncludeTrivial = parse.GetValue(includeTrivial),
                 TableRowLimit = limit,
             });
             AtomicFile.Write(outPath, report.Utf8());
@@ -65,7 +89,8 @@ public static class ReportCommand
             var s = report.Summary;
             var table = report.TableCapped ? $" (table: {report.TableRows:N0} of them)" : "";
             var pictures = parse.GetValue(genotypes) is null ? "" : $", {report.Pictures:N0} cell {(report.Pictures == 1 ? "picture" : "pictures")}";
-            Console.Error.WriteLine($"report: wrote {outPath}: {s.Total:N0} records{table}, {s.ParamsVsMacs.Points.Count:N0} on the Pareto front{pictures}");
+            var fronts = string.Join(", ", report.Fronts.Select(f => $"{f.Title} {f.Count:N0}"));
+            Console.Error.WriteLine($"report: wrote {outPath}: {s.Total:N0} records{table}; Pareto fronts: {(fronts.Length == 0 ? "none" : fronts)}{pictures}");
             return ExitCodes.Ok;
         });
         return command;

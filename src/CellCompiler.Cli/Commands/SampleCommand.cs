@@ -1,6 +1,7 @@
 using System.CommandLine;
 using System.Globalization;
 using CellCompiler.Input;
+using CellCompiler.Io;
 using CellCompiler.Sampling;
 using CellCompiler.Vocabulary;
 
@@ -146,42 +147,7 @@ public static class SampleCommand
         }
     }
 
-    /// <summary>
-    /// Streams into a temporary sibling and renames it over <paramref name="path"/> at the end, as
-    /// <see cref="AtomicFile"/> does for whole files: no reader ever sees a partial population.
-    /// </summary>
-    private static void WriteToFile(string path, GenotypeSampler sampler, long count)
-    {
-        var full = Path.GetFullPath(path);
-        var directory = Path.GetDirectoryName(full)!;
-        if (!Directory.Exists(directory))
-            throw new OutputException($"{path}: the folder {directory} does not exist");
-        if (Directory.Exists(full))
-            throw new OutputException($"{path}: is a folder");
-        var temporary = Path.Combine(directory, $".{Path.GetFileName(full)}.{Environment.ProcessId}.tmp");
-        var moved = false;
-        try
-        {
-            using (var stream = new FileStream(temporary, FileMode.Create, FileAccess.Write, FileShare.None, 1 << 16))
-            {
-                WriteLines(stream, sampler, count);
-                stream.Flush(flushToDisk: true);
-            }
-            File.Move(temporary, full, overwrite: true);
-            moved = true;
-        }
-        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
-        {
-            throw new OutputException($"{path}: cannot write the file: {e.Message}");
-        }
-        finally
-        {
-            if (!moved) TryDelete(temporary);
-        }
-    }
-
-    private static void TryDelete(string path)
-    {
-        try { File.Delete(path); } catch (IOException) { } catch (UnauthorizedAccessException) { }
-    }
+    /// <summary>Streams through the one atomic writer: no reader ever sees a partial population.</summary>
+    private static void WriteToFile(string path, GenotypeSampler sampler, long count) =>
+        AtomicFile.Write(path, stream => WriteLines(stream, sampler, count));
 }

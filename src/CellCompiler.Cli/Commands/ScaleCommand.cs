@@ -132,7 +132,7 @@ public static class ScaleCommand
     {
         var first = rows[0];
         var withLatency = rows.Any(r => r.Latency is not null);
-        output.WriteLine($"{genotype.Name}: {rows.Count} target(s); ratios to '{first.Target.Label}' in brackets");
+        output.WriteLine($"{genotype.Name}: {Wording.Counted(rows.Count, "target")}; ratios to '{first.Target.Label}' in brackets");
         output.WriteLine();
         var header = $"{"target",-18} {"params",-18} {"MACs",-18} {"peak act.",-20} {$"train mem. (B={trainBatch})",-22} {"ONNX size",-20}";
         if (withLatency) header += $" {"p50 ms",-16}";

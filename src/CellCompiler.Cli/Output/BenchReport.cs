@@ -15,7 +15,7 @@ public static class BenchReport
     {
         var l = result.Latency;
         output.WriteLine($"{TerminalText.Safe(result.Path)}: {TerminalText.Safe(result.Description)}");
-        output.WriteLine($"CPU: {TerminalText.Safe(l.Processor)}; ONNX Runtime {l.RuntimeVersion}; {Formatting.Plural(l.Threads, "intra-op thread")}");
+        output.WriteLine($"CPU: {TerminalText.Safe(l.Processor)}; ONNX Runtime {l.RuntimeVersion}; {Wording.Counted(l.Threads, "intra-op thread")}");
         output.WriteLine();
         output.WriteLine($"{"batch",6} {"runs",6} {"min ms",10} {"p50 ms",10} {"p90 ms",10} {"mean ms",10} {"std ms",9} {"samples/s",11}  output");
         foreach (var b in l.Batches)

@@ -26,7 +26,7 @@ public sealed class CheckTable(TextWriter output, bool withLatency)
     {
         output.WriteLine("Memory figures are estimates (float32; training: activations kept at --train-batch plus 4 copies of every parameter).");
         if (anyLatency is { } l)
-            output.WriteLine($"Latency: CPU, {TerminalText.Safe(l.Processor)}, ONNX Runtime {l.RuntimeVersion}, {Formatting.Plural(l.Threads, "thread")}. It does not transfer to other hardware.");
+            output.WriteLine($"Latency: CPU, {TerminalText.Safe(l.Processor)}, ONNX Runtime {l.RuntimeVersion}, {Wording.Counted(l.Threads, "thread")}. It does not transfer to other hardware.");
     }
 
     private static string Fit(string text, int width) => text.Length <= width ? text : text[..(width - 1)] + "~";

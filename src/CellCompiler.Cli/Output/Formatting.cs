@@ -48,10 +48,6 @@ public static class Formatting
         return rounded.ToString(decimals == 0 ? "#,0" : "F" + decimals, Invariant);
     }
 
-    /// <summary>A count with its noun, singular or plural: "1 line", "2 lines", "1,000 candidates".</summary>
-    public static string Plural(long count, string singular, string? plural = null) =>
-        $"{count.ToString("N0", Invariant)} {(count == 1 ? singular : plural ?? singular + "s")}";
-
     public static string Duration(TimeSpan span) => span.TotalHours >= 1
         ? $"{(int)span.TotalHours}h{span.Minutes:00}m"
         : span.TotalMinutes >= 1 ? $"{(int)span.TotalMinutes}m{span.Seconds:00}s" : $"{span.Seconds}s";

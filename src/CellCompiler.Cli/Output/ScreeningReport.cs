@@ -8,7 +8,7 @@ public static class ScreeningReport
     public static void Write(TextWriter output, ScreeningSummary summary, TimeSpan elapsed)
     {
         var counts = string.Join(", ", CheckStatusNames.All.Select(s => $"{s.Name()} {summary.Count(s):N0}"));
-        output.WriteLine($"{Formatting.Plural(summary.Done, "candidate")}: {counts}");
+        output.WriteLine($"{Wording.Counted(summary.Done, "candidate")}: {counts}");
         output.WriteLine($"Checked in {Formatting.Duration(elapsed)}" +
                          (summary.Cached > 0 ? $"; {summary.Cached:N0} answered from the cache." : "."));
         var reasons = summary.TopReasons(5);

@@ -29,6 +29,10 @@ public static class DemoRun
 {
     public const string Marker = ".cellc-demo";
 
+    /// <summary>What the report shows: a population sampled afresh by this run (not a search generation), screened at proxy size.</summary>
+    public static readonly string ReportTitle =
+        $"Tide-pool classifier: {DemoData.PopulationSize} freshly sampled cells (seed {DemoData.PopulationSeed}), screened at proxy size";
+
     public static DemoResult Run(string folder, Action<string>? progress = null)
     {
         var clock = Stopwatch.StartNew();
@@ -91,19 +95,19 @@ public static class DemoRun
             }, new Quiet(), () => Stream.Null);
             var summary = screening.Summary;
 
-            // 3. The report, with the pictures of the Pareto-front cells.
+            // 3. The report, with the pictures of the cells on its Pareto fronts.
             progress?.Invoke("writing the report");
             ReportResult report;
             using (var results = File.OpenRead(resultsPath))
                 report = HtmlReport.Build(results, "results.jsonl", new ReportOptions
                 {
-                    Title = "Tide-pool classifier: search generation 7",
+                    Title = ReportTitle,
                     GenotypesPath = populationPath,
                     GenotypesDisplayName = "population.jsonl",
                     DrawCell = CellRenderer.Svg,
                 });
             File.WriteAllBytes(Place("report.html", "the screening report (open in a browser; self-contained)"), report.Utf8());
-            var front = summary.ParamsVsMacs.Points.Select(p => p.Id).ToHashSet(StringComparer.Ordinal);
+            var front = report.FrontIds.ToHashSet(StringComparer.Ordinal);
             foreach (var candidate in PopulationReader.ReadFile(populationPath))
                 if (front.Contains(candidate.Id) && candidate.Genotype is { } genotype)
                     File.WriteAllText(Place($"pictures/front-{candidate.Id}.svg", $"picture of Pareto-front cell {candidate.Id}"), CellRenderer.Svg(genotype));

@@ -68,18 +68,18 @@ public static class ModelInspector
 
         var notes = new List<string>();
         if (external > 0)
-            notes.Add($"{Plural(external, "initializer keeps its", "initializers keep their")} data in external files; elements are counted from the dims");
+            notes.Add($"{Wording.Counted(external, "initializer keeps its", "initializers keep their")} data in external files; elements are counted from the dims");
         if (constants > 0)
-            notes.Add($"{Plural(constants, "element", "elements")} of int64/bool initializers (shapes, axes, indices) {(constants == 1 ? "is" : "are")} not counted as params");
+            notes.Add($"{Wording.Counted(constants, "element", "elements")} of int64/bool initializers (shapes, axes, indices) {(constants == 1 ? "is" : "are")} not counted as params");
         if (initializersAsInputs > 0)
-            notes.Add($"{Plural(initializersAsInputs, "initializer is", "initializers are")} also listed as graph inputs (defaults a caller may override), not shown as inputs");
+            notes.Add($"{Wording.Counted(initializersAsInputs, "initializer is", "initializers are")} also listed as graph inputs (defaults a caller may override), not shown as inputs");
         if (subgraphNodes > 0)
-            notes.Add($"{Plural(subgraphNodes, "node inside a subgraph (If/Loop/Scan body) is", "nodes inside subgraphs (If/Loop/Scan bodies) are")} not in the op counts or MACs");
+            notes.Add($"{Wording.Counted(subgraphNodes, "node inside a subgraph (If/Loop/Scan body) is", "nodes inside subgraphs (If/Loop/Scan bodies) are")} not in the op counts or MACs");
         if (outside.Count > 0)
             notes.Add($"{string.Join(", ", outside.Select(kv => $"{kv.Key} ({kv.Value})"))} also multiply-accumulate, " +
                       "but section 4 counts only Conv and Gemm: their MACs are not in the total");
         if (coverage.Inferred > 0)
-            notes.Add($"{Plural(coverage.Inferred, "tensor shape the model does not state was", "tensor shapes the model does not state were")} propagated by cellc along the graph");
+            notes.Add($"{Wording.Counted(coverage.Inferred, "tensor shape the model does not state was", "tensor shapes the model does not state were")} propagated by cellc along the graph");
 
         return new ModelInspection
         {
@@ -113,9 +113,6 @@ public static class ModelInspector
             Notes = notes,
         };
     }
-
-    private static string Plural(long count, string one, string many) =>
-        $"{count.ToString("N0", CultureInfo.InvariantCulture)} {(count == 1 ? one : many)}";
 
     private static bool IsDefaultDomain(string domain) => domain is "" or "ai.onnx";
 

@@ -7,11 +7,14 @@ namespace CellCompiler.Rendering;
 /// <summary>One node of a drawn motif: its index, whether it is dead, and whether it merges ≥2 live inputs.</summary>
 public sealed record RenderNode(int Index, bool IsInput, bool IsOutput, bool IsDead, bool IsMerge, int LiveInputs);
 
-/// <summary>One drawn edge (never a `none` edge); dead when dead-code removal drops it.</summary>
-public sealed record RenderEdge(Edge Edge, bool IsDead, EdgeKind Kind);
+/// <summary>One drawn edge (never a `none` edge); dead when dead-code removal drops it; drawn in its op's line family.</summary>
+public sealed record RenderEdge(Edge Edge, bool IsDead, LineFamily Family);
 
-/// <summary>What an edge applies, for styling.</summary>
-public enum EdgeKind { Identity, Convolution, Pooling, Motif }
+/// <summary>A primitive the genotype declares (contract 3.1), for the legend; <paramref name="Drawn"/> when an edge of a drawn panel applies it.</summary>
+public sealed record DeclaredPrimitive(string Name, PrimitiveDefinition Definition, bool Drawn)
+{
+    public LineFamily Family => LineFamilies.Of(Definition.Kind.Family);
+}
 
 /// <summary>One motif to draw: the cell or a used motif.</summary>
 public sealed record RenderPanel(
@@ -34,8 +37,16 @@ public sealed record OmittedMotif(string Name, int Level, bool IsDead);
 /// file order), and the motifs left out (unused, or dead and so acting as `none`).
 /// </summary>
 public sealed record RenderModel(string GenotypeName, int LevelCount, bool CellIsLive,
-    IReadOnlyList<RenderPanel> Panels, IReadOnlyList<OmittedMotif> Omitted)
+    IReadOnlyList<RenderPanel> Panels, IReadOnlyList<OmittedMotif> Omitted, IReadOnlyList<DeclaredPrimitive> Declared)
 {
+    /// <summary>The line families drawn, in the table's order (for the legend).</summary>
+    public IReadOnlyList<LineFamily> Families =>
+        LineFamilies.All.Where(f => Panels.Any(p => p.Edges.Any(e => e.Family == f))).ToList();
+
+    public bool HasDead => Panels.Any(p => p.Edges.Any(e => e.IsDead) || p.Nodes.Any(n => n.IsDead));
+
+    public bool HasMerge => Panels.Any(p => p.Nodes.Any(n => n.IsMerge));
+
     public static RenderModel Build(Genotype genotype)
     {
         var liveness = Liveness.Analyse(genotype);
@@ -55,7 +66,10 @@ public sealed record RenderModel(string GenotypeName, int LevelCount, bool CellI
                     omitted.Add(new OmittedMotif(motif.Name, k, !info.OutputIsLive));
             }
         }
-        return new RenderModel(genotype.Name, genotype.Levels.Count, liveness.Cell(genotype).OutputIsLive, panels, omitted);
+        var drawnOps = panels.Where(p => p.Level == 0).SelectMany(p => p.Edges).Select(e => e.Edge.Op).ToHashSet(StringComparer.Ordinal);
+        var declared = genotype.Primitives.Declared
+            .Select(d => new DeclaredPrimitive(d.Name, d.Definition, drawnOps.Contains(d.Name))).ToList();
+        return new RenderModel(genotype.Name, genotype.Levels.Count, liveness.Cell(genotype).OutputIsLive, panels, omitted, declared);
     }
 
     /// <summary>
@@ -103,15 +117,15 @@ public sealed record RenderModel(string GenotypeName, int LevelCount, bool CellI
         var edges = motif.Edges
             .Where(e => e.Op != Primitives.None)
             .OrderBy(e => e.From).ThenBy(e => e.To)
-            .Select(e => new RenderEdge(e, !live.Contains(e.Index), Kind(e.Op, level, primitives)))
+            .Select(e => new RenderEdge(e, !live.Contains(e.Index), Family(e.Op, level, primitives)))
             .ToList();
         return new RenderPanel(motif, level, isCell, info.OutputIsLive, nodes, edges, users);
     }
 
-    private static EdgeKind Kind(string op, int level, PrimitiveTable primitives) => op switch
+    private static LineFamily Family(string op, int level, PrimitiveTable primitives) => op switch
     {
-        Primitives.Identity => EdgeKind.Identity,
-        _ when level > 0 => EdgeKind.Motif,
-        _ => primitives.Get(op).Kind.Family == KindFamily.Pooling ? EdgeKind.Pooling : EdgeKind.Convolution,
+        Primitives.Identity => LineFamily.Identity,
+        _ when level > 0 => LineFamily.Motif,
+        _ => LineFamilies.Of(primitives.Get(op).Kind.Family),
     };
 }

@@ -10,7 +10,9 @@ public enum Ink
     Grid,
     Ok,
     Over,
+    Broken,
     Front,
+    Budget,
 }
 
 /// <summary>
@@ -33,18 +35,23 @@ public static class ChartSvg
 
     public static string CssVariable(Ink ink) => "--ink-" + ink.ToString().ToLowerInvariant();
 
+    /// <summary>The size of a small chart: text keeps its size, the plot is smaller.</summary>
+    public const double SmallWidth = 440;
+    public const double SmallHeight = 300;
+
     /// <summary>The SVG element, with the given id and class `chart`, scaling to its container's width.</summary>
-    public static string Export(PlotModel model, string id, string label)
+    public static string Export(PlotModel model, string id, string label, bool small = false)
     {
+        var (width, height) = small ? (SmallWidth, SmallHeight) : (Width, Height);
         var measurer = new ChartTextMeasurer();
-        var svg = SvgExporter.ExportToString(model, Width, Height, isDocument: false, measurer);
+        var svg = SvgExporter.ExportToString(model, width, height, isDocument: false, measurer);
         svg = SvgFragment.Inline(svg, id + "-");
         svg = svg.Replace($"fill=\"{Placeholder(Ink.Text)}\"", "fill=\"currentColor\"", StringComparison.Ordinal);
         foreach (var ink in Enum.GetValues<Ink>())
             svg = svg.Replace(Placeholder(ink), $"var({CssVariable(ink)})", StringComparison.Ordinal);
         svg = svg.Replace($" font-family=\"{MeasuredFont}\"", "", StringComparison.Ordinal);
         // The page sizes the chart: the viewBox keeps its proportions.
-        svg = svg.Replace($"<svg width=\"{Width}\" height=\"{Height}\"", "<svg", StringComparison.Ordinal);
+        svg = svg.Replace($"<svg width=\"{width}\" height=\"{height}\"", "<svg", StringComparison.Ordinal);
         return SvgFragment.AddRootAttributes(svg,
             $" id=\"{id}\" class=\"chart\" role=\"img\" aria-label=\"{Html.Attribute(label)}\" preserveAspectRatio=\"xMidYMid meet\"");
     }

@@ -33,6 +33,16 @@ public static class Html
         _ => value.ToString("0.##", Invariant),
     };
 
+    /// <summary>Four significant digits for a metric (0.8734, 12.5, 1234), scaled from 10,000 on (12.3 k).</summary>
+    public static string Significant(double value)
+    {
+        value = double.Parse(value.ToString("G12", Invariant), Invariant);
+        if (Math.Abs(value) >= 1e4) return ScaledExact(value);
+        if (value == 0) return "0";
+        var decimals = Math.Clamp(3 - (int)Math.Floor(Math.Log10(Math.Abs(value))), 0, 6);
+        return Math.Round(value, decimals).ToString(decimals == 0 ? "0" : "0." + new string('#', decimals), Invariant);
+    }
+
     public static string Milliseconds(double ms) => ms switch
     {
         >= 100 => ms.ToString("0", Invariant),

@@ -1,5 +1,6 @@
 using CellCompiler.Screening;
 using OxyPlot;
+using OxyPlot.Annotations;
 using OxyPlot.Axes;
 using OxyPlot.Legends;
 using OxyPlot.Series;
@@ -8,99 +9,153 @@ namespace CellCompiler.Reporting;
 
 /// <summary>
 /// The report's charts as OxyPlot models, drawn in placeholder <see cref="Ink"/> colours for
-/// <see cref="ChartSvg"/>: params against MACs and against latency p50 (ok and over-budget
-/// candidates, the Pareto front of the ok ones as large diamonds joined by its staircase), and
-/// histograms of params and MACs (ok stacked under over budget). An axis is logarithmic when its
-/// values span a factor of 10 or more.
+/// <see cref="ChartSvg"/>. Scatter plots of one measure against another: ok, over_budget and broken
+/// candidates in their status colours and also in their own marker shapes (circle, square,
+/// triangle), trivial cells as hollow circles when they are left out of the fronts, the front as
+/// large diamonds joined by its staircase, and the budgets of the run as labelled dashed lines, so
+/// the cut is seen rather than inferred from colours. Histograms stack ok under over_budget under
+/// broken, with the budget as a line. An axis is logarithmic when its values span a factor of 10 or
+/// more; an axis always reaches its budget.
 /// </summary>
 public static class ReportCharts
 {
     private const int Bins = 24;
 
-    public static PlotModel ParamsVsMacs(ResultsSummary summary, int pointLimit) =>
-        Scatter(summary.Points, p => p.Macs, "MACs", Html.Scaled, summary.ParamsVsMacs, pointLimit);
-
-    public static PlotModel ParamsVsLatency(ResultsSummary summary, int pointLimit) =>
-        Scatter(summary.Points.Where(p => p.HasLatency).ToList(), p => p.LatencyMs, "latency p50 at batch 1 (ms)",
-            Html.MillisecondTick, summary.ParamsVsLatency, pointLimit);
-
-    public static PlotModel ParamsHistogram(ResultsSummary summary) =>
-        Histogram(summary.Points, p => p.Params, "params");
-
-    public static PlotModel MacsHistogram(ResultsSummary summary) =>
-        Histogram(summary.Points, p => p.Macs, "MACs");
-
-    /// <summary>Every k-th point, so that at most <paramref name="limit"/> are drawn (the front is always drawn).</summary>
-    public static IReadOnlyList<ChartPoint> Thin(IReadOnlyList<ChartPoint> points, int limit)
-    {
-        if (points.Count <= limit) return points;
-        var step = (points.Count + limit - 1) / limit;
-        var kept = new List<ChartPoint>(limit);
-        for (var i = 0; i < points.Count; i += step) kept.Add(points[i]);
-        return kept;
-    }
-
-    private static PlotModel Scatter(IReadOnlyList<ChartPoint> points, Func<ChartPoint, double> y, string yTitle,
-        Func<double, string> yFormat, ParetoFront front, int pointLimit)
+    /// <summary>A chart of <paramref name="y"/> against <paramref name="x"/> with the given front (or none); with a diagonal for predicted against measured.</summary>
+    public static PlotModel Scatter(ResultsSummary summary, Measure x, Measure y, FrontSpec? front, int pointLimit, bool diagonal = false)
     {
         var model = NewModel();
-        var frontPoints = front.Points;
-        model.Axes.Add(ValueAxis(AxisPosition.Bottom, "params", points.Select(p => p.Params), Html.Scaled));
-        model.Axes.Add(ValueAxis(AxisPosition.Left, yTitle, points.Select(y), yFormat));
-
-        var drawn = Thin(points, pointLimit);
-        var over = Markers("over budget", Ink.Over, MarkerType.Circle, 3.2);
-        var ok = Markers("ok", Ink.Ok, MarkerType.Circle, 3.2);
-        foreach (var p in drawn)
-            (p.Status == CheckStatus.Ok ? ok : over).Points.Add(new ScatterPoint(p.Params, y(p)));
-        if (over.Points.Count > 0) model.Series.Add(over);
-        if (ok.Points.Count > 0) model.Series.Add(ok);
-
-        if (frontPoints.Count > 0)
+        var points = summary.Points.Where(p => !double.IsNaN(x.Of(p)) && !double.IsNaN(y.Of(p))).ToList();
+        var xBudget = x.BudgetIn(summary.Budgets);
+        var yBudget = y.BudgetIn(summary.Budgets);
+        var xValues = points.Select(x.Of).ToList();
+        var yValues = points.Select(y.Of).ToList();
+        if (diagonal)
         {
-            var staircase = new LineSeries
-            {
-                Color = ChartSvg.Color(Ink.Front),
-                StrokeThickness = 1.6,
-                LineStyle = LineStyle.Solid,
-                RenderInLegend = false,
-            };
-            for (var i = 0; i < frontPoints.Count; i++)
-            {
-                if (i > 0) staircase.Points.Add(new DataPoint(frontPoints[i].X, frontPoints[i - 1].Y));
-                staircase.Points.Add(new DataPoint(frontPoints[i].X, frontPoints[i].Y));
-            }
-            model.Series.Add(staircase);
-            var diamonds = new ScatterSeries
-            {
-                Title = "Pareto front of ok",
-                MarkerType = MarkerType.Diamond,
-                MarkerSize = 6,
-                MarkerFill = ChartSvg.Color(Ink.Front),
-                MarkerStroke = ChartSvg.Color(Ink.Text),
-                MarkerStrokeThickness = 0.8,
-            };
-            foreach (var p in frontPoints) diamonds.Points.Add(new ScatterPoint(p.X, p.Y));
-            model.Series.Add(diamonds);
+            // One scale for both axes, so that the diagonal is the line of perfect prediction.
+            xValues = yValues = xValues.Concat(yValues).ToList();
+            xBudget ??= yBudget;
+            yBudget ??= xBudget;
         }
+        model.Axes.Add(ValueAxis(AxisPosition.Bottom, x.Label, xValues, xBudget, x.Tick));
+        model.Axes.Add(ValueAxis(AxisPosition.Left, y.Label, yValues, yBudget, y.Tick));
+
+        var trivialApart = !summary.IncludeTrivial;
+        var ok = Markers(CheckStatus.Ok.Name(), Ink.Ok, MarkerType.Circle, 3.2);
+        var over = Markers(CheckStatus.OverBudget.Name(), Ink.Over, MarkerType.Square, 2.9);
+        var broken = Markers(CheckStatus.Broken.Name(), Ink.Broken, MarkerType.Triangle, 3.6);
+        var trivial = Markers("trivial cell (left out of fronts)", Ink.Ok, MarkerType.Circle, 3.4);
+        trivial.MarkerFill = OxyColors.Transparent;
+        trivial.MarkerStrokeThickness = 1.3;
+        foreach (var p in Thin(points, pointLimit))
+        {
+            var series = p.Status switch
+            {
+                CheckStatus.Ok when p.Trivial && trivialApart => trivial,
+                CheckStatus.Ok => ok,
+                CheckStatus.OverBudget => over,
+                _ => broken,
+            };
+            series.Points.Add(new ScatterPoint(x.Of(p), y.Of(p)));
+        }
+        foreach (var series in new[] { over, broken, trivial, ok })
+            if (series.Points.Count > 0) model.Series.Add(series);
+
+        if (diagonal && xValues.Count > 0)
+        {
+            var (low, high) = (xValues.Min(), xValues.Max());
+            model.Series.Add(new LineSeries
+            {
+                Title = "predicted = measured",
+                Color = ChartSvg.Color(Ink.Axis),
+                StrokeThickness = 1.2,
+                LineStyle = LineStyle.Dash,
+                Points = { new DataPoint(low, low), new DataPoint(high, high) },
+            });
+        }
+        if (front is not null) AddFront(model, front.Members);
+        if (xBudget is { } xb) model.Annotations.Add(BudgetLine(LineAnnotationType.Vertical, xb, x));
+        // Predicted against measured: one budget on both axes, named once.
+        if (yBudget is { } yb) model.Annotations.Add(BudgetLine(LineAnnotationType.Horizontal, yb, y, labelled: !(diagonal && xBudget is not null)));
         if (points.Count == 0) model.Subtitle = "no candidate has these figures";
         return model;
     }
 
-    private static PlotModel Histogram(IReadOnlyList<ChartPoint> points, Func<ChartPoint, double> value, string title)
+    /// <summary>The budget lines a scatter or histogram of these measures draws (for the page's captions and tests).</summary>
+    public static IReadOnlyList<string> BudgetOptions(ResultsSummary summary, params Measure[] measures) =>
+        measures.Where(m => m.BudgetIn(summary.Budgets) is not null).Select(m => m.BudgetOption!).Distinct().ToList();
+
+    private static void AddFront(PlotModel model, IReadOnlyList<FrontMember> members)
+    {
+        if (members.Count == 0) return;
+        var staircase = new LineSeries
+        {
+            Color = ChartSvg.Color(Ink.Front),
+            StrokeThickness = 1.6,
+            LineStyle = LineStyle.Solid,
+            RenderInLegend = false,
+        };
+        for (var i = 0; i < members.Count; i++)
+        {
+            if (i > 0) staircase.Points.Add(new DataPoint(members[i].X, members[i - 1].Y));
+            staircase.Points.Add(new DataPoint(members[i].X, members[i].Y));
+        }
+        model.Series.Add(staircase);
+        var diamonds = new ScatterSeries
+        {
+            Title = "Pareto front",
+            MarkerType = MarkerType.Diamond,
+            MarkerSize = 6,
+            MarkerFill = ChartSvg.Color(Ink.Front),
+            MarkerStroke = ChartSvg.Color(Ink.Text),
+            MarkerStrokeThickness = 0.8,
+        };
+        foreach (var m in members) diamonds.Points.Add(new ScatterPoint(m.X, m.Y));
+        model.Series.Add(diamonds);
+    }
+
+    private static LineAnnotation BudgetLine(LineAnnotationType type, double value, Measure measure, bool labelled = true) => new()
+    {
+        Type = type,
+        X = type == LineAnnotationType.Vertical ? value : 0,
+        Y = type == LineAnnotationType.Horizontal ? value : 0,
+        Color = ChartSvg.Color(Ink.Budget),
+        StrokeThickness = 1.4,
+        LineStyle = LineStyle.LongDash,
+        Text = labelled ? $"{measure.BudgetOption} {measure.Show(value)}" : "",
+        TextColor = ChartSvg.Color(Ink.Budget),
+        FontSize = 11,
+        TextHorizontalAlignment = HorizontalAlignment.Right,
+        TextVerticalAlignment = VerticalAlignment.Top,
+        TextOrientation = type == LineAnnotationType.Vertical ? AnnotationTextOrientation.Vertical : AnnotationTextOrientation.Horizontal,
+        TextLinePosition = 1,
+        TextMargin = 4,
+    };
+
+    /// <summary>How many candidates fall in each range of the measure, stacked by status, with the measure's budget as a line.</summary>
+    public static PlotModel Histogram(ResultsSummary summary, Measure measure)
     {
         var model = NewModel();
-        var values = points.Select(value).ToList();
+        var points = summary.Points.Where(p => !double.IsNaN(measure.Of(p))).ToList();
+        var values = points.Select(measure.Of).ToList();
+        var budget = measure.BudgetIn(summary.Budgets);
         var (edges, logarithmic) = BinEdges(values);
         Axis x = logarithmic
-            ? new LogarithmicAxis { Position = AxisPosition.Bottom, Title = title, LabelFormatter = Html.Scaled }
-            : new LinearAxis { Position = AxisPosition.Bottom, Title = title, LabelFormatter = Html.Scaled };
+            ? new LogarithmicAxis { Position = AxisPosition.Bottom, Title = measure.Label, LabelFormatter = measure.Tick }
+            : new LinearAxis { Position = AxisPosition.Bottom, Title = measure.Label, LabelFormatter = measure.Tick };
         if (values.Count > 0 && edges.Length == 2)
         {
             // One value only: a narrow bar in a wider range, so that it reads as one value.
             var width = edges[1] - edges[0];
             x.Minimum = edges[0] - 4 * width;
             x.Maximum = edges[1] + 4 * width;
+        }
+        if (budget is { } b && values.Count > 0)
+        {
+            // The axis reaches the budget, so the cut is on the chart even when every candidate is on one side.
+            var (low, high) = Padded(Math.Min(double.IsNaN(x.Minimum) ? edges[0] : x.Minimum, b), Math.Max(double.IsNaN(x.Maximum) ? edges[^1] : x.Maximum, b), logarithmic);
+            x.Minimum = low;
+            x.Maximum = high;
         }
         model.Axes.Add(x);
         model.Axes.Add(new LinearAxis
@@ -112,23 +167,33 @@ public static class ReportCharts
             MinimumMinorStep = 1,
             MaximumPadding = 0.08,
             StringFormat = "#,0",
+            MajorGridlineStyle = LineStyle.Solid,
         });
         foreach (var axis in model.Axes) Style(axis);
 
-        var all = new long[edges.Length - 1];
-        var ok = new long[edges.Length - 1];
-        foreach (var p in points)
+        // Drawn in order, each status's bars cover the lower part of the ones before: a stacked look.
+        var stacks = new[] { CheckStatus.Broken, CheckStatus.OverBudget, CheckStatus.Ok };
+        for (var level = 0; level < stacks.Length; level++)
         {
-            var bin = Bin(edges, value(p));
-            all[bin]++;
-            if (p.Status == CheckStatus.Ok) ok[bin]++;
+            var included = stacks[level..];
+            var counts = new long[edges.Length - 1];
+            foreach (var p in points)
+                if (included.Contains(p.Status)) counts[Bin(edges, measure.Of(p))]++;
+            if (points.Any(p => p.Status == stacks[level]))
+                model.Series.Add(Bars(stacks[level].Name(), InkOf(stacks[level]), edges, counts));
         }
-        // Drawn in order, the ok bars cover the lower part of the bars of all candidates: a stacked look.
-        if (points.Any(p => p.Status != CheckStatus.Ok)) model.Series.Add(Bars("over budget", Ink.Over, edges, all));
-        if (points.Any(p => p.Status == CheckStatus.Ok)) model.Series.Add(Bars("ok", Ink.Ok, edges, ok));
+        if (budget is { } line) model.Annotations.Add(BudgetLine(LineAnnotationType.Vertical, line, measure));
         if (points.Count == 0) model.Subtitle = "no candidate has this figure";
         return model;
     }
+
+    private static Ink InkOf(CheckStatus status) => status switch
+    {
+        CheckStatus.Ok => Ink.Ok,
+        CheckStatus.OverBudget => Ink.Over,
+        CheckStatus.Broken => Ink.Broken,
+        _ => throw new ArgumentOutOfRangeException(nameof(status), status, "invalid candidates have no figures to chart"),
+    };
 
     private static HistogramSeries Bars(string title, Ink ink, double[] edges, long[] counts)
     {
@@ -145,6 +210,16 @@ public static class ReportCharts
         return series;
     }
 
+    /// <summary>Every k-th point, so that at most <paramref name="limit"/> are drawn (the front is always drawn).</summary>
+    public static IReadOnlyList<ChartPoint> Thin(IReadOnlyList<ChartPoint> points, int limit)
+    {
+        if (points.Count <= limit) return points;
+        var step = (points.Count + limit - 1) / limit;
+        var kept = new List<ChartPoint>(limit);
+        for (var i = 0; i < points.Count; i += step) kept.Add(points[i]);
+        return kept;
+    }
+
     /// <summary>Bin edges: uniform, or uniform in log scale when the values span a factor of 10 or more.</summary>
     public static (double[] Edges, bool Logarithmic) BinEdges(IReadOnlyList<double> values)
     {
@@ -157,7 +232,7 @@ public static class ReportCharts
             return ([min - half, max + half], false);
         }
         var edges = new double[Bins + 1];
-        var logarithmic = min > 0 && max / min >= 10;
+        var logarithmic = IsLogarithmic(min, max);
         for (var i = 0; i <= Bins; i++)
             edges[i] = logarithmic
                 ? Math.Exp(Math.Log(min) + (Math.Log(max) - Math.Log(min)) * i / Bins)
@@ -167,11 +242,26 @@ public static class ReportCharts
         return (edges, logarithmic);
     }
 
+    private static bool IsLogarithmic(double min, double max) => min > 0 && max / min >= 10;
+
     private static int Bin(double[] edges, double v)
     {
         var i = Array.BinarySearch(edges, v);
         if (i < 0) i = ~i - 1;
         return Math.Clamp(i, 0, edges.Length - 2);
+    }
+
+    /// <summary>A range with 6% room on each side (in log space for a logarithmic axis).</summary>
+    private static (double Low, double High) Padded(double min, double max, bool logarithmic)
+    {
+        if (logarithmic && min > 0)
+        {
+            var (lo, hi) = (Math.Log10(min), Math.Log10(max));
+            var pad = Math.Max((hi - lo) * 0.06, 0.02);
+            return (Math.Pow(10, lo - pad), Math.Pow(10, hi + pad));
+        }
+        var room = max > min ? (max - min) * 0.06 : Math.Max(Math.Abs(min) * 0.05, 0.5);
+        return (min - room, max + room);
     }
 
     private static PlotModel NewModel()
@@ -204,17 +294,25 @@ public static class ReportCharts
         return model;
     }
 
-    private static Axis ValueAxis(AxisPosition position, string title, IEnumerable<double> values, Func<double, string> format)
+    /// <summary>A value axis over the values and the budget (if any), logarithmic when they span a factor of 10.</summary>
+    private static Axis ValueAxis(AxisPosition position, string title, IReadOnlyList<double> values, double? budget, Func<double, string> format)
     {
-        var list = values.ToList();
-        var logarithmic = list.Count > 0 && list.Min() > 0 && list.Max() / list.Min() >= 10;
+        var all = budget is { } b ? values.Append(b).ToList() : values.ToList();
+        var logarithmic = all.Count > 0 && IsLogarithmic(all.Min(), all.Max());
         Axis axis = logarithmic ? new LogarithmicAxis() : new LinearAxis();
         axis.Position = position;
         axis.Title = title;
         axis.LabelFormatter = format;
-        axis.MinimumPadding = 0.06;
-        axis.MaximumPadding = 0.06;
         axis.MajorGridlineStyle = LineStyle.Solid;
+        if (all.Count > 0 && budget is not null)
+        {
+            (axis.Minimum, axis.Maximum) = Padded(all.Min(), all.Max(), logarithmic);
+        }
+        else
+        {
+            axis.MinimumPadding = 0.06;
+            axis.MaximumPadding = 0.06;
+        }
         Style(axis);
         return axis;
     }
@@ -231,8 +329,6 @@ public static class ReportCharts
         axis.TitleColor = ChartSvg.Color(Ink.Text);
         axis.TitleFontSize = 12.5;
         axis.TickStyle = TickStyle.Outside;
-        if (axis.MajorGridlineStyle == LineStyle.None && axis.Position == AxisPosition.Left)
-            axis.MajorGridlineStyle = LineStyle.Solid;
         axis.IsZoomEnabled = false;
         axis.IsPanEnabled = false;
     }

@@ -9,5 +9,15 @@ public sealed record ReportPage(
     ResultsSummary Summary,
     IReadOnlyList<ResultRow> Rows,
     bool TableCapped,
+    IReadOnlyList<ReportChart> Charts,
     IReadOnlyDictionary<string, CellPicture>? Pictures,
-    ReportOptions Options);
+    ScoreJoin? Scores,
+    ReportOptions Options)
+{
+    /// <summary>The fronts the charts show that have members, in chart order, each once.</summary>
+    public IReadOnlyList<FrontSpec> Fronts { get; } =
+        Charts.Select(c => c.Front).OfType<FrontSpec>().Where(f => f.Count > 0).Distinct().ToList();
+}
+
+/// <summary>How the scores file joined the records: its name, its metrics, and its ids that no record has.</summary>
+public sealed record ScoreJoin(string Name, IReadOnlyList<string> Metrics, int Count, IReadOnlyList<string> NotInResults, int NotInResultsCount);

@@ -1,38 +1,37 @@
+using CellCompiler.Rendering;
+
 namespace CellCompiler.Reporting;
 
 /// <summary>
-/// The report's embedded stylesheet and script. Colours are CSS variables with a light and a dark
-/// set: the dark set applies when the reader's system prefers dark, unless the page's toggle chose
-/// otherwise (html[data-theme]). Charts take their colours from the same variables (see
-/// <see cref="ChartSvg"/>). The script sorts the candidate table by a clicked header, filters it, and
+/// The report's embedded stylesheet and script. Colours are the palette's CSS variables
+/// (<see cref="Palette"/>) with a light and a dark set: the dark set applies when the reader's system
+/// prefers dark, unless the page's toggle chose otherwise (html[data-theme]). Charts take their colours
+/// from the same variables (see <see cref="ChartSvg"/>), and so do the cell pictures, which the toggle
+/// switches with the page. The script sorts the candidate table by a clicked header, filters it, and
 /// switches the theme; it loads nothing.
 /// </summary>
 public static class ReportStyle
 {
-    private const string Light = """
-        --bg: #f5f3ee; --surface: #fffefb; --sunk: #efece5; --fg: #1c2128; --muted: #5e6570; --rule: #dad5ca;
-        --accent: #0d6f68; --focus: #0d6f68;
-        --ok: #1f7f55; --over: #b0701a; --broken: #bf3f2a; --invalid: #6a639a; --front: #b8246f;
-        --ink-text: var(--fg); --ink-axis: #8a8f96; --ink-grid: #e6e1d7;
-        --ink-ok: var(--ok); --ink-over: var(--over); --ink-front: var(--front);
-        --paper: #fffefb; --paper-fg: #1c2128;
-        """;
-
-    private const string Dark = """
-        --bg: #14171c; --surface: #1c2026; --sunk: #23282f; --fg: #e7e4dd; --muted: #9ba2ac; --rule: #333a43;
-        --accent: #5cc6b9; --focus: #5cc6b9;
-        --ok: #55c08e; --over: #e6a842; --broken: #f07c62; --invalid: #aaa5dc; --front: #ff70b4;
-        --ink-text: var(--fg); --ink-axis: #7f8791; --ink-grid: #2b3139;
-        --ink-ok: var(--ok); --ink-over: var(--over); --ink-front: var(--front);
-        --paper: #f4f1ea; --paper-fg: #1c2128;
+    /// <summary>The page's own names for the palette's colours (<see cref="Palette"/>), the same for both themes.</summary>
+    private const string Names = """
+        --bg: var(--cellc-page); --surface: var(--cellc-surface); --sunk: var(--cellc-sunk); --fg: var(--cellc-text);
+        --muted: var(--cellc-muted); --rule: var(--cellc-rule); --accent: var(--cellc-accent); --focus: var(--cellc-accent);
+        --ok: var(--cellc-ok); --over: var(--cellc-over-budget); --broken: var(--cellc-broken); --invalid: var(--cellc-invalid);
+        --front: var(--cellc-front);
+        --ink-text: var(--cellc-text); --ink-axis: var(--cellc-axis); --ink-grid: var(--cellc-grid);
+        --ink-ok: var(--cellc-ok); --ink-over: var(--cellc-over-budget); --ink-broken: var(--cellc-broken);
+        --ink-front: var(--cellc-front); --ink-budget: var(--cellc-text);
+        --paper: var(--cellc-surface); --paper-fg: var(--cellc-text);
         """;
 
     public static readonly string Css = $$"""
-        :root { color-scheme: light; {{Light}} }
-        html[data-theme="dark"] { color-scheme: dark; {{Dark}} }
+        :root { color-scheme: light; {{Palette.Light.CssVariables()}} {{Names}} }
+        html[data-theme="dark"] { color-scheme: dark; {{Palette.Dark.CssVariables()}} }
         @media (prefers-color-scheme: dark) {
-          html:not([data-theme="light"]) { color-scheme: dark; {{Dark}} }
+          html:not([data-theme="light"]) { color-scheme: dark; {{Palette.Dark.CssVariables()}} }
         }
+        html[data-theme="light"] .cellc-render { {{Palette.Light.CssVariables()}} }
+        html[data-theme="dark"] .cellc-render { {{Palette.Dark.CssVariables()}} }
         * { box-sizing: border-box; }
         html { background: var(--bg); color: var(--fg); }
         body { margin: 0; font: 15px/1.5 system-ui, "Segoe UI", "Liberation Sans", "DejaVu Sans", sans-serif; }
@@ -72,6 +71,7 @@ public static class ReportStyle
         .notes { margin: 1rem 0 0; padding: 0.7rem 0.9rem; border: 1px dashed var(--rule); border-radius: 6px; background: var(--sunk); font-size: 0.9rem; }
         .notes ul { margin: 0.3rem 0 0; padding-left: 1.2rem; }
         .chart-grid { display: grid; grid-template-columns: repeat(auto-fit, minmax(min(100%, 440px), 1fr)); gap: 1rem; }
+        .chart-card.small { max-width: 500px; }
         .chart-card { margin: 0; background: var(--surface); border: 1px solid var(--rule); border-radius: 8px; padding: 0.8rem 0.9rem 0.5rem; }
         .chart-card figcaption { display: flex; flex-direction: column; margin-bottom: 0.3rem; }
         .chart-card figcaption strong { font-weight: 600; }
@@ -80,7 +80,11 @@ public static class ReportStyle
         svg.chart text { font-family: "Liberation Sans", Arial, Helvetica, sans-serif; }
         .front-grid { display: grid; grid-template-columns: repeat(auto-fill, minmax(min(100%, 300px), 1fr)); gap: 1rem; }
         .front-card { background: var(--surface); border: 1px solid var(--rule); border-top: 4px solid var(--front); border-radius: 8px; padding: 0.7rem 0.9rem; }
-        .front-card h3 { margin: 0; font-size: 0.98rem; overflow-wrap: anywhere; }
+        .front-card h4 { margin: 0; font-size: 0.98rem; overflow-wrap: anywhere; }
+        .front-card .on-fronts { font-size: 0.86rem; margin: 0 0 0.5rem; }
+        .budgets { color: var(--muted); font-size: 0.9rem; margin: 0.5rem 0 0; }
+        .budgets code { color: var(--fg); }
+        a { color: var(--accent); }
         .front-card .figs { color: var(--muted); font-size: 0.86rem; margin: 0.15rem 0 0.5rem; font-variant-numeric: tabular-nums; }
         .front-card.drawn { grid-column: 1 / -1; }
         .cell-picture { margin: 0; border-radius: 6px; overflow: auto; color: var(--fg); }

@@ -164,7 +164,7 @@ public sealed class GenotypeSampler
                 return new(SampleParameter.Nodes, $"each level has {Limits.MinNodes} to {Limits.MaxNodes} nodes, found {n}");
         if (motifs.Count != nodes.Count)
             return new(SampleParameter.Motifs,
-                $"{motifs.Count} motif count(s) for {nodes.Count} level(s); give one motif count per level");
+                $"{Wording.Counted(motifs.Count, "motif count")} for {Wording.Counted(nodes.Count, "level")}; give one motif count per level");
         foreach (var m in motifs)
             if (m is < 1 or > Limits.MaxMotifsPerLevel)
                 return new(SampleParameter.Motifs, $"each level has 1 to {Limits.MaxMotifsPerLevel} motifs, found {m}");

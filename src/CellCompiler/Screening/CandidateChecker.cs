@@ -1,6 +1,8 @@
 using System.Text.Json;
 using System.Diagnostics;
 using System.Globalization;
+using System.Security.Cryptography;
+using System.Text;
 using CellCompiler.Compilation;
 using CellCompiler.Figures;
 using CellCompiler.Graph;
@@ -112,8 +114,12 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             Cached = cached,
             CheckMs = Math.Round(clock.Elapsed.TotalMilliseconds, 4),
             Meta = MetaOf(candidate),
+            Budgets = RecordedBudgets,
         };
     }
+
+    /// <summary>The run's budgets as records carry them: null when none was set.</summary>
+    private Budgets? RecordedBudgets => options.Budgets == Budgets.None ? null : options.Budgets;
 
     private sealed record Prepared(GenotypeHashes Hashes, IReadOnlyList<string> Warnings, IReadOnlyList<string> Notes, Evaluation Evaluation, bool Cached, byte[]? Model, string? LatencyKey);
 
@@ -144,13 +150,31 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         var evaluation = cache?.FindEvaluation(key);
         if (evaluation?.Figures is null) evaluation = null; // entries of older builds without figures are not trusted
         var cached = evaluation is not null;
+        var spelling = SpellingOf(genotype);
         if (evaluation is null || (!evaluation.SmokeTested && WouldRun(evaluation)))
         {
             cached = false;
             (evaluation, model) = Evaluate(genotype, hashes);
+            evaluation = evaluation with { Spelling = spelling };
             // Only networks that compiled are cached: a compile failure's reason names this spelling's
             // own JSON paths (every dead cell has the same hash), and finding it again is cheap.
             if (evaluation.Figures is not null) cache?.StoreEvaluation(key, evaluation);
+        }
+        else if (evaluation.Spelling != spelling)
+        {
+            // Another spelling of the same network filled the cache: its verdict holds, but the file
+            // size and the peak activation follow the spelling, so this one is compiled (not run).
+            CompiledModel compiled;
+            using (_memory.Reserve(CompileEstimate(genotype)))
+                compiled = Compiler.Compile(genotype, options.Skeleton, options.Compile, hashes);
+            evaluation = evaluation with
+            {
+                Figures = compiled.Figures,
+                ActivationBytesPerSample = TrainingMemory.ActivationBytesPerSample(compiled.Network),
+                OnnxBytes = compiled.OnnxBytes.LongLength,
+                Spelling = spelling,
+            };
+            model = compiled.OnnxBytes;
         }
 
         string? latencyKey = null;
@@ -165,6 +189,10 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         }
         return new Prepared(hashes, warnings, notes, evaluation, cached, model, latencyKey);
     }
+
+    /// <summary>Identifies a genotype's exact spelling: the text its model records (names, order, declarations).</summary>
+    private static string SpellingOf(Genotype genotype) =>
+        Convert.ToHexString(SHA256.HashData(Encoding.UTF8.GetBytes(Compiler.RecordedGenotype(genotype))));
 
     private long TrainMemory(Evaluation evaluation) =>
         TrainingMemory.EstimateBytes(evaluation.ActivationBytesPerSample!.Value, evaluation.Figures!.Params, evaluation.Figures.Buffers, options.TrainBatch);
@@ -250,7 +278,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     private static string LatencyKey(LatencySettings s) =>
         $"cpu={MachineInfo.Processor}|ort={MachineInfo.RuntimeVersion}|threads={s.Threads}|batches={string.Join(",", s.BatchSizes)}|warmup={s.Warmup}|runs={s.Runs}|min={s.MinSeconds}";
 
-    private static CheckRecord Failed(Candidate candidate, GenotypeHashes? hashes, CheckStatus status, string reason, string? kind,
+    private CheckRecord Failed(Candidate candidate, GenotypeHashes? hashes, CheckStatus status, string reason, string? kind,
         IReadOnlyList<string> warnings, Stopwatch clock, bool cached = false) => new()
     {
         Id = candidate.Id,
@@ -264,6 +292,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         Cached = cached,
         CheckMs = Math.Round(clock.Elapsed.TotalMilliseconds, 4),
         Meta = MetaOf(candidate),
+        Budgets = RecordedBudgets,
     };
 
     /// <summary>The record of a candidate whose check failed in a way this tool did not foresee (a bug).</summary>

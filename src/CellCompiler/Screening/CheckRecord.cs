@@ -58,6 +58,10 @@ public sealed record CheckRecord
     [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
     public System.Text.Json.JsonElement? Meta { get; init; }
 
+    /// <summary>The budgets the run judged this candidate against (absent when none was set), so that a report can draw the cut.</summary>
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public Budgets? Budgets { get; init; }
+
     /// <summary>Compiled: params and MACs known.</summary>
     [JsonIgnore]
     public bool HasFigures => Params is not null && Macs is not null;

@@ -3,8 +3,10 @@ using CellCompiler.Figures;
 namespace CellCompiler.Screening;
 
 /// <summary>
-/// What compiling and smoke-testing a genotype on a skeleton found, independent of budgets, names
-/// and spelling: the part of a check that the cache keeps. Failure null means the model works.
+/// What compiling and smoke-testing a genotype on a skeleton found, independent of budgets: the part
+/// of a check that the cache keeps. Failure null means the model works. The verdict and the figures
+/// but two belong to the network; the file size and the peak activation memory belong to the
+/// spelling too (names, metadata, emitted order), which <see cref="Spelling"/> identifies.
 /// </summary>
 public sealed record Evaluation(
     CheckStatus? Failure,
@@ -14,7 +16,8 @@ public sealed record Evaluation(
     NetworkFigures? Figures,
     long? ActivationBytesPerSample,
     long? OnnxBytes,
-    bool SmokeTested = true)
+    bool SmokeTested = true,
+    string? Spelling = null)
 {
     /// <summary>Compiled, and either passed the smoke test or was not run (see <see cref="SmokeTested"/>).</summary>
     public bool Works => Failure is null;
