@@ -90,10 +90,10 @@ public static class MutateCommand
             }
 
             var retried = options.Distinct || summary.Retries > 0
-                ? $"; {Formatting.Plural(summary.Retries, "draw")} retried" + (options.Distinct ? " (--distinct)" : "")
+                ? $"; {Wording.Counted(summary.Retries, "draw")} retried" + (options.Distinct ? " (--distinct)" : "")
                 : "";
-            var gaveUp = summary.GaveUp > 0 ? $"; gave up on {Formatting.Plural(summary.GaveUp, "mutant")}" : "";
-            Console.Error.WriteLine($"cellc mutate: {Formatting.Plural(summary.Mutants, "mutant")} of {Formatting.Plural(summary.Parents, "parent")}{retried}{gaveUp}");
+            var gaveUp = summary.GaveUp > 0 ? $"; gave up on {Wording.Counted(summary.GaveUp, "mutant")}" : "";
+            Console.Error.WriteLine($"cellc mutate: {Wording.Counted(summary.Mutants, "mutant")} of {Wording.Counted(summary.Parents, "parent")}{retried}{gaveUp}");
             return summary.GaveUp > 0 ? ExitCodes.CandidateFailed : ExitCodes.Ok;
         });
         return command;

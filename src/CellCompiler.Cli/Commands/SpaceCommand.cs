@@ -199,13 +199,13 @@ public static class SpaceCommand
     private static void WriteText(TextWriter output, SpaceSurvey s)
     {
         var space = s.Space;
-        output.WriteLine($"{TerminalText.Safe(space.Name)}  ({SearchSpace.FormatTag}, {Formatting.Plural(space.Levels.Count, "level")})");
+        output.WriteLine($"{TerminalText.Safe(space.Name)}  ({SearchSpace.FormatTag}, {Wording.Counted(space.Levels.Count, "level")})");
         for (var k = 0; k < space.Levels.Count; k++)
         {
             var level = space.Levels[k];
-            var motifs = k == space.Levels.Count - 1 ? "the cell" : Formatting.Plural(level.Motifs, "motif");
-            output.WriteLine($"  level {k}      {motifs} of {level.Nodes} nodes ({Formatting.Plural(level.Pairs, "pair")}) over " +
-                $"{Formatting.Plural(space.Alphabet(k).Count, "op")}: {string.Join(", ", level.Ops)}");
+            var motifs = k == space.Levels.Count - 1 ? "the cell" : Wording.Counted(level.Motifs, "motif");
+            output.WriteLine($"  level {k}      {motifs} of {level.Nodes} nodes ({Wording.Counted(level.Pairs, "pair")}) over " +
+                $"{Wording.Counted(space.Alphabet(k).Count, "op")}: {string.Join(", ", level.Ops)}");
         }
         output.WriteLine($"  genotypes    {Big(space.Genotypes)}  (log10 {space.Log10Genotypes.ToString("0.###", Invariant)})");
         var merge = Skeleton.MergeName(s.Skeleton.Merge);
@@ -218,7 +218,7 @@ public static class SpaceCommand
         else
         {
             var c = s.Estimate!;
-            output.WriteLine($"  method       estimated from {Formatting.Plural(s.Samples, "uniform sample")} (seed {s.Options.Seed}); 95% intervals");
+            output.WriteLine($"  method       estimated from {Wording.Counted(s.Samples, "uniform sample")} (seed {s.Options.Seed}); 95% intervals");
             output.WriteLine($"  dead         {Percent(s.DeadFraction.Value)}  ({Percent(s.DeadFraction.Lower)} to {Percent(s.DeadFraction.Upper)}, Wilson)");
             output.WriteLine($"  networks     about {Formatting.Scaled(s.Networks.Value)} distinct under {merge} merges " +
                 $"({Formatting.Scaled(s.Networks.Lower)} to {Formatting.Scaled(s.Networks.Upper)}, Chao1{(c.Form == Chao1Form.BiasCorrected ? " bias-corrected" : "")})");
@@ -233,11 +233,11 @@ public static class SpaceCommand
         if (s.InexactHashes > 0)
             output.WriteLine($"  caution      {s.InexactHashes:N0} hashes hit the search budget; a network may be counted more than once");
         var f = s.Figures;
-        output.WriteLine($"  figures      {Formatting.Plural(f.Measured, "live sample")} under the skeleton (3 significant digits)");
+        output.WriteLine($"  figures      {Wording.Counted(f.Measured, "live sample")} under the skeleton (3 significant digits)");
         if (f.Params is { } p) output.WriteLine($"  params       {Spread(p)}");
         if (f.Macs is { } m) output.WriteLine($"  MACs         {Spread(m)}");
         if (f.Failures > 0)
-            output.WriteLine($"  not counted  {Formatting.Plural(f.Failures, "live sample")}: {TerminalText.Safe(f.FirstFailure)}");
+            output.WriteLine($"  not counted  {Wording.Counted(f.Failures, "live sample")}: {TerminalText.Safe(f.FirstFailure)}");
     }
 
     private static string Spread(Percentiles p) =>
