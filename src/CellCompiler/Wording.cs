@@ -2,7 +2,10 @@ using System.Globalization;
 
 namespace CellCompiler;
 
-/// <summary>The one place that chooses between a noun's singular and plural, for every message and page.</summary>
+/// <summary>
+/// How counts and numbers are worded for a person, in one place for every message: a noun's
+/// singular or plural, and figures with the same number of significant digits side by side.
+/// </summary>
 public static class Wording
 {
     /// <summary>The noun alone: "record" for 1, "records" otherwise (or the given plural).</summary>
@@ -12,4 +15,18 @@ public static class Wording
     /// <summary>A count with its noun: "1 line", "2 lines", "1,000 candidates".</summary>
     public static string Counted(long count, string singular, string? plural = null) =>
         $"{count.ToString("N0", CultureInfo.InvariantCulture)} {Noun(count, singular, plural)}";
+
+    /// <summary>
+    /// Three significant digits ("3.45", "36.0", "1,234"), so that figures side by side read alike;
+    /// rounding that carries into the next power of ten keeps three digits ("9.996" is "10.0").
+    /// </summary>
+    public static string Significant(double value)
+    {
+        if (value == 0 || !double.IsFinite(value)) return value.ToString("0", CultureInfo.InvariantCulture);
+        var magnitude = (int)Math.Floor(Math.Log10(Math.Abs(value)));
+        var decimals = Math.Max(0, 2 - magnitude);
+        var rounded = Math.Round(value, decimals);
+        if (rounded != 0 && (int)Math.Floor(Math.Log10(Math.Abs(rounded))) > magnitude) decimals = Math.Max(0, decimals - 1);
+        return rounded.ToString(decimals == 0 ? "#,0" : "F" + decimals, CultureInfo.InvariantCulture);
+    }
 }

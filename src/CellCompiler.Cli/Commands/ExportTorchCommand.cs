@@ -1,4 +1,5 @@
 using System.CommandLine;
+using System.CommandLine.Parsing;
 using CellCompiler.Cli.Options;
 using CellCompiler.Cli.Output;
 using CellCompiler.Compilation;
@@ -55,8 +56,7 @@ public static class ExportTorchCommand
             Console.Out.WriteLine($"  primitives   {string.Join(", ", module.PrimitiveClasses)}");
             Console.Out.WriteLine($"  motifs       {string.Join(", ", module.MotifClasses)}");
             Console.Out.WriteLine($"  params       {Formatting.Count(f.Params)}, buffers {Formatting.Count(f.Buffers)}");
-            Console.Out.WriteLine($"  weights      load_onnx_weights(model, path) reads the ONNX file of `cellc compile {genotypePath}` " +
-                                  "with the same skeleton options (any --seed)");
+            Console.Out.WriteLine($"  weights      load_onnx_weights(model, path) reads the ONNX file of `{TerminalText.Safe(CompileCall(parse, output))}` (any --seed)");
             foreach (var warning in model.Warnings)
                 Console.Out.WriteLine($"  warning      {warning}");
             return ExitCodes.Ok;
@@ -65,6 +65,21 @@ public static class ExportTorchCommand
     }
 
     /// <summary>tidepool-vocab.json -> tidepool_vocab.py: an importable module name.</summary>
+    /// <summary>The `cellc compile` call that writes this module's weights: the same arguments without --output.</summary>
+    private static string CompileCall(ParseResult parse, Option<string?> output)
+    {
+        var words = new List<string> { "cellc", "compile" };
+        var skipNext = false;
+        foreach (var token in parse.Tokens)
+        {
+            if (skipNext) { skipNext = false; continue; }
+            if (token.Type == TokenType.Command) continue;
+            if (token.Type == TokenType.Option && (token.Value == output.Name || output.Aliases.Contains(token.Value))) { skipNext = true; continue; }
+            words.Add(token.Value.Contains(' ') ? $"'{token.Value}'" : token.Value);
+        }
+        return string.Join(' ', words);
+    }
+
     private static string DefaultOutput(string genotypePath)
     {
         var stem = Path.GetFileNameWithoutExtension(genotypePath);

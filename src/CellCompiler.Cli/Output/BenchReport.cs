@@ -39,7 +39,7 @@ public static class BenchReport
         {
             output.WriteLine();
             foreach (var b in noisy)
-                output.WriteLine($"Noisy measurement at batch {b.Batch}: p90 is {Formatting.Significant(b.P90Ms / b.P50Ms)} x p50 " +
+                output.WriteLine($"Noisy measurement at batch {b.Batch}: p90 is {Wording.Significant(b.P90Ms / b.P50Ms)} x p50 " +
                                  $"(above {LatencyStats.NoisyRatio} x), so p50 may mislead.");
             output.WriteLine("Measure longer (e.g. --min-seconds 5) or with fewer background jobs on this machine.");
         }

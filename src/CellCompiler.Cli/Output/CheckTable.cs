@@ -14,11 +14,11 @@ public sealed class CheckTable(TextWriter output, bool withLatency)
 
     public void WriteRow(CheckRecord r)
     {
-        var latency = withLatency ? $" {(r.LatencyMs is { } ms ? Formatting.Significant(ms) : "-"),9}" : "";
+        var latency = withLatency ? $" {(r.LatencyMs is { } ms ? Wording.Significant(ms) : "-"),9}" : "";
         output.WriteLine(
             $"{Fit(TerminalText.Safe(r.Id), 20),-20} {r.Status.Name(),-11} {(r.Params is { } p ? Formatting.Scaled(p) : "-"),10} " +
-            $"{(r.Macs is { } m ? Formatting.Scaled(m) : "-"),10} {(r.PeakActivationBytes is { } a ? Formatting.Significant(a / 1e6) : "-"),8} " +
-            $"{(r.TrainMemoryBytes is { } t ? Formatting.Significant(t / 1e9) : "-"),9}{latency}  {TerminalText.Safe(r.Reason)}");
+            $"{(r.Macs is { } m ? Formatting.Scaled(m) : "-"),10} {(r.PeakActivationBytes is { } a ? Wording.Significant(a / 1e6) : "-"),8} " +
+            $"{(r.TrainMemoryBytes is { } t ? Wording.Significant(t / 1e9) : "-"),9}{latency}  {TerminalText.Safe(r.Reason)}");
     }
 
     /// <summary>The cautions that go with the figures.</summary>

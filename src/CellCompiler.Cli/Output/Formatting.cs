@@ -19,34 +19,22 @@ public static class Formatting
     /// <summary>A count in k, M, G or T with three significant digits: "76.1 k", "4.00 M", "512".</summary>
     public static string Scaled(double value) => Math.Abs(value) switch
     {
-        >= 999.5e9 => Significant(value / 1e12) + " T",
-        >= 999.5e6 => Significant(value / 1e9) + " G",
-        >= 999.5e3 => Significant(value / 1e6) + " M",
-        >= 999.5 => Significant(value / 1e3) + " k",
-        _ => value == Math.Floor(value) ? value.ToString("0", Invariant) : Significant(value),
+        >= 999.5e9 => Wording.Significant(value / 1e12) + " T",
+        >= 999.5e6 => Wording.Significant(value / 1e9) + " G",
+        >= 999.5e3 => Wording.Significant(value / 1e6) + " M",
+        >= 999.5 => Wording.Significant(value / 1e3) + " k",
+        _ => value == Math.Floor(value) ? value.ToString("0", Invariant) : Wording.Significant(value),
     };
 
     /// <summary>Bytes in decimal units with three significant digits: "262 kB", "2.19 MB", "1.52 GB".</summary>
     public static string Bytes(long bytes) => Math.Abs((double)bytes) switch
     {
-        >= 999.5e9 => Significant(bytes / 1e12) + " TB",
-        >= 999.5e6 => Significant(bytes / 1e9) + " GB",
-        >= 999.5e3 => Significant(bytes / 1e6) + " MB",
-        >= 999.5 => Significant(bytes / 1e3) + " kB",
+        >= 999.5e9 => Wording.Significant(bytes / 1e12) + " TB",
+        >= 999.5e6 => Wording.Significant(bytes / 1e9) + " GB",
+        >= 999.5e3 => Wording.Significant(bytes / 1e6) + " MB",
+        >= 999.5 => Wording.Significant(bytes / 1e3) + " kB",
         _ => bytes.ToString(Invariant) + " B",
     };
-
-    /// <summary>Three significant digits, trailing zeros kept ("4.00", "45.6", "123"); larger values whole.</summary>
-    public static string Significant(double value)
-    {
-        if (value == 0 || !double.IsFinite(value)) return value.ToString("0", Invariant);
-        var magnitude = (int)Math.Floor(Math.Log10(Math.Abs(value)));
-        var decimals = Math.Max(0, 2 - magnitude);
-        var rounded = Math.Round(value, decimals);
-        // Rounding can carry into the next power of ten (9.996 -> 10.00): show 10.0, not 10.00.
-        if (rounded != 0 && (int)Math.Floor(Math.Log10(Math.Abs(rounded))) > magnitude) decimals = Math.Max(0, decimals - 1);
-        return rounded.ToString(decimals == 0 ? "#,0" : "F" + decimals, Invariant);
-    }
 
     public static string Duration(TimeSpan span) => span.TotalHours >= 1
         ? $"{(int)span.TotalHours}h{span.Minutes:00}m"

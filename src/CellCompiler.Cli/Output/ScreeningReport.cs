@@ -20,7 +20,7 @@ public static class ScreeningReport
         }
         WriteFront(output, "params against MACs", summary.ParamsVsMacs, "MACs", y => Formatting.Scaled(y));
         if (summary.LatencyMeasured)
-            WriteFront(output, "params against latency p50", summary.ParamsVsLatency, "p50", y => $"{Formatting.Significant(y)} ms");
+            WriteFront(output, "params against latency p50", summary.ParamsVsLatency, "p50", y => $"{Wording.Significant(y)} ms");
     }
 
     private static void WriteFront(TextWriter output, string title, ParetoFront front, string yName, Func<double, string> formatY)

@@ -23,10 +23,14 @@ public static class AtomicFile
 
     public static T Write<T>(string path, Func<Stream, T> write)
     {
-        var full = Path.GetFullPath(path);
-        var directory = Path.GetDirectoryName(full)!;
-        if (Directory.Exists(full))
+        var requested = Path.GetFullPath(path);
+        if (Directory.Exists(requested))
             throw new OutputException($"{path}: is a folder; give a file name");
+        // Checked before links are resolved: /dev/stdout links to /proc/self/fd/1, whose target is no path.
+        if (FileKind.IsSpecial(requested))
+            return WriteInPlace(path, requested, write);
+        var full = FinalTarget(requested);
+        var directory = Path.GetDirectoryName(full)!;
         if (!Directory.Exists(directory))
             throw new OutputException($"{path}: the folder {directory} does not exist");
         RemoveStale(full);
@@ -51,6 +55,36 @@ public static class AtomicFile
         {
             TryDelete(temporary);
             throw;
+        }
+    }
+
+    /// <summary>A symbolic link is written through: its target is replaced, the link stays a link.</summary>
+    private static string FinalTarget(string fullPath)
+    {
+        try
+        {
+            var target = new FileInfo(fullPath).ResolveLinkTarget(returnFinalTarget: true);
+            return target is null ? fullPath : Path.GetFullPath(target.FullName);
+        }
+        catch (IOException) { return fullPath; } // a link loop: the rename below reports it
+    }
+
+    /// <summary>
+    /// A device or a pipe (`-o /dev/stdout`, `-o /dev/null`, a named pipe) is written directly: it
+    /// cannot be replaced by a rename, and a reader of it sees the stream as it comes anyway.
+    /// </summary>
+    private static T WriteInPlace<T>(string path, string full, Func<Stream, T> write)
+    {
+        try
+        {
+            using var stream = new FileStream(full, FileMode.Open, FileAccess.Write, FileShare.ReadWrite, 1 << 16);
+            var result = write(stream);
+            stream.Flush();
+            return result;
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            throw new OutputException($"{path}: cannot write: {e.Message}", e);
         }
     }
 

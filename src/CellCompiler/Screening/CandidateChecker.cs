@@ -147,34 +147,38 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         var key = $"{hashes.NetworkHash}|{_settingsKey}";
 
         byte[]? model = null;
-        var evaluation = cache?.FindEvaluation(key);
-        if (evaluation?.Figures is null) evaluation = null; // entries of older builds without figures are not trusted
-        var cached = evaluation is not null;
+        Evaluation? evaluation = null;
         var spelling = SpellingOf(genotype);
-        if (evaluation is null || (!evaluation.SmokeTested && WouldRun(evaluation)))
+        var found = cache?.FindEvaluation(key);
+        if (found?.Figures is null) found = null; // entries without figures are not trusted
+        if (found is not null && found.Spelling != spelling)
         {
-            cached = false;
+            // Another spelling of the same network filled the cache: its run verdict holds, but the file
+            // size and the peak activation follow the spelling, so this one is compiled (not run).
+            var (compiled, compiledModel) = Compile(genotype, hashes);
+            found = compiled.Figures is null ? null : found with
+            {
+                Figures = compiled.Figures,
+                ActivationBytesPerSample = compiled.ActivationBytesPerSample,
+                OnnxBytes = compiled.OnnxBytes,
+                Spelling = spelling,
+            };
+            model = compiledModel?.OnnxBytes;
+        }
+        if (found is not null)
+        {
+            // Budgets and limits are judged afresh on this spelling's figures, exactly as a run without the cache would.
+            if (NotRun(found) is { } notRun) evaluation = notRun;
+            else if (found.SmokeTested) evaluation = found;
+        }
+        var cached = evaluation is not null;
+        if (evaluation is null)
+        {
             (evaluation, model) = Evaluate(genotype, hashes);
             evaluation = evaluation with { Spelling = spelling };
             // Only networks that compiled are cached: a compile failure's reason names this spelling's
             // own JSON paths (every dead cell has the same hash), and finding it again is cheap.
             if (evaluation.Figures is not null) cache?.StoreEvaluation(key, evaluation);
-        }
-        else if (evaluation.Spelling != spelling)
-        {
-            // Another spelling of the same network filled the cache: its verdict holds, but the file
-            // size and the peak activation follow the spelling, so this one is compiled (not run).
-            CompiledModel compiled;
-            using (_memory.Reserve(CompileEstimate(genotype)))
-                compiled = Compiler.Compile(genotype, options.Skeleton, options.Compile, hashes);
-            evaluation = evaluation with
-            {
-                Figures = compiled.Figures,
-                ActivationBytesPerSample = TrainingMemory.ActivationBytesPerSample(compiled.Network),
-                OnnxBytes = compiled.OnnxBytes.LongLength,
-                Spelling = spelling,
-            };
-            model = compiled.OnnxBytes;
         }
 
         string? latencyKey = null;
@@ -197,10 +201,17 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     private long TrainMemory(Evaluation evaluation) =>
         TrainingMemory.EstimateBytes(evaluation.ActivationBytesPerSample!.Value, evaluation.Figures!.Params, evaluation.Figures.Buffers, options.TrainBatch);
 
-    /// <summary>Whether these options run a network that a cached evaluation did not run.</summary>
-    private bool WouldRun(Evaluation evaluation) =>
-        TooLargeToRun(evaluation.Figures!) is null
-        && (options.RunOverBudget || Judge(evaluation.Figures!, TrainMemory(evaluation), null, options).Item1 == CheckStatus.Ok);
+    /// <summary>
+    /// The evaluation of a compiled network that this run does not execute: over a budget that needs
+    /// no run (unless --run-over-budget), or too large for this machine. Null when it runs.
+    /// </summary>
+    private Evaluation? NotRun(Evaluation compiled)
+    {
+        var notRun = compiled with { Failure = null, FailureReason = null, FailureKind = null, SmokeTested = false };
+        if (!options.RunOverBudget && Judge(compiled.Figures!, TrainMemory(compiled), null, options).Item1 != CheckStatus.Ok)
+            return notRun;
+        return TooLargeToRun(compiled.Figures!) is { } tooLarge ? notRun with { FailureReason = tooLarge } : null;
+    }
 
     /// <summary>
     /// Memory to run at batch 2, estimated: the model bytes three times (ours, the runtime's copy and
@@ -233,10 +244,31 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             : null;
     }
 
-    private static string Gigabytes(long bytes) => Significant(bytes / 1e9);
+    private static string Gigabytes(long bytes) => Wording.Significant(bytes / 1e9);
 
     /// <summary>Compile and smoke-test: the cacheable part of a check.</summary>
     private (Evaluation, byte[]?) Evaluate(Genotype genotype, GenotypeHashes hashes)
+    {
+        var (compiled, model) = Compile(genotype, hashes);
+        if (model is null) return (compiled, null);
+        // Budgets that need no run are judged first: a candidate already over one is not run at all
+        // unless the user asks for it.
+        if (NotRun(compiled) is { } notRun) return (notRun, model.OnnxBytes);
+        SmokeVerdict verdict;
+        using (_memory.Reserve(RunEstimate(model.Figures)))
+            verdict = SmokeTest.Run(model.OnnxBytes, model.InputShape.Dims, model.OutputShape.Dims, options.Compile.Seed);
+        var evaluation = compiled with
+        {
+            Failure = verdict.Works ? null : CheckStatus.Broken,
+            FailureReason = verdict.Problem,
+            FailureKind = verdict.Works ? null : verdict.Kind,
+            SmokeTested = true,
+        };
+        return (evaluation, model.OnnxBytes);
+    }
+
+    /// <summary>The compile alone: figures (not run yet), or why the network cannot be formed.</summary>
+    private (Evaluation, CompiledModel?) Compile(Genotype genotype, GenotypeHashes hashes)
     {
         CompiledModel model;
         using (var reservation = _memory.Reserve(CompileEstimate(genotype)))
@@ -255,24 +287,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             }
         }
         var activation = TrainingMemory.ActivationBytesPerSample(model.Network);
-        var compiled = new Evaluation(null, null, null, model.OutputShape.Dims, model.Figures, activation, model.OnnxBytes.LongLength, SmokeTested: false);
-        // Budgets that need no run are judged first: a candidate already over one is not run at all
-        // unless the user asks for it.
-        if (!options.RunOverBudget && Judge(model.Figures, TrainMemory(compiled), null, options).Item1 != CheckStatus.Ok)
-            return (compiled, model.OnnxBytes);
-        if (TooLargeToRun(model.Figures) is { } tooLarge)
-            return (compiled with { FailureReason = tooLarge }, model.OnnxBytes);
-        SmokeVerdict verdict;
-        using (_memory.Reserve(RunEstimate(model.Figures)))
-            verdict = SmokeTest.Run(model.OnnxBytes, model.InputShape.Dims, model.OutputShape.Dims, options.Compile.Seed);
-        var evaluation = compiled with
-        {
-            Failure = verdict.Works ? null : CheckStatus.Broken,
-            FailureReason = verdict.Problem,
-            FailureKind = verdict.Works ? null : verdict.Kind,
-            SmokeTested = true,
-        };
-        return (evaluation, model.OnnxBytes);
+        return (new Evaluation(null, null, null, model.OutputShape.Dims, model.Figures, activation, model.OnnxBytes.LongLength, SmokeTested: false), model);
     }
 
     private static string LatencyKey(LatencySettings s) =>
@@ -326,8 +341,8 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         void Compare(string what, double actual, double? limit, string option, string unit, bool count = false)
         {
             if (limit is not { } max || actual <= max) return;
-            var (shownActual, shownMax) = count ? (Count(actual), Count(max)) : (Significant(actual), Significant(max));
-            over.Add($"{what} {shownActual}{unit} exceeds {option} {shownMax}{unit} by {Significant(100 * (actual - max) / max)}%");
+            var (shownActual, shownMax) = count ? (Count(actual), Count(max)) : (Wording.Significant(actual), Wording.Significant(max));
+            over.Add($"{what} {shownActual}{unit} exceeds {option} {shownMax}{unit} by {Wording.Significant(100 * (actual - max) / max)}%");
             kinds.Add("over " + option);
         }
         Compare("params", figures.Params, budgets.MaxParams, "--max-params", "", count: true);
@@ -343,14 +358,4 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
 
     /// <summary>A whole count with thousands separators (a budget of 5M reads "5,000,000").</summary>
     private static string Count(double value) => Math.Round(value).ToString("N0", CultureInfo.InvariantCulture);
-
-    /// <summary>Three significant digits ("3.45", "36.0", "1,234"), so that figures side by side read alike; never rounds a small value to 0.</summary>
-    public static string Significant(double value)
-    {
-        if (value == 0 || !double.IsFinite(value)) return value.ToString(CultureInfo.InvariantCulture);
-        var magnitude = (int)Math.Floor(Math.Log10(Math.Abs(value)));
-        if (magnitude >= 2) return Math.Round(value).ToString("N0", CultureInfo.InvariantCulture);
-        var decimals = 2 - magnitude;
-        return Math.Round(value, decimals).ToString("F" + decimals, CultureInfo.InvariantCulture);
-    }
 }
