@@ -243,7 +243,7 @@ public static class SpaceCommand
     private static string Spread(Percentiles p) =>
         string.Join("  ", p.Named().Select(x => $"{x.Name} {Formatting.Scaled(x.Value)}"));
 
-    private static string Percent(double fraction) => double.IsNaN(fraction) ? "n/a" : Formatting.Significant(fraction * 100) + "%";
+    private static string Percent(double fraction) => double.IsNaN(fraction) ? "n/a" : Wording.Significant(fraction * 100) + "%";
 
     /// <summary>The exact count, grouped, and for large counts the power of ten.</summary>
     private static string Big(System.Numerics.BigInteger value)
