@@ -157,6 +157,8 @@ public static class SpaceCommand
             writer.WriteNumber("doubletons", c.Doubletons);
             writer.WriteNumber("variance", Math.Round(c.Variance, 3));
             writer.WriteNumber("coverage", Math.Round(c.Coverage, 6));
+            // Chao1 is a lower bound; with little coverage (README, measured) it is a floor, not an estimate of the size.
+            writer.WriteBoolean("lower_bound_only", c.Coverage < 0.5);
             writer.WriteEndObject();
             writer.WriteString("dead_fraction_method", "Wilson score interval, 95%");
         }
@@ -226,7 +228,9 @@ public static class SpaceCommand
                 $"{c.Singletons.ToString("N0", Invariant)} once, {c.Doubletons.ToString("N0", Invariant)} twice; sample coverage {Percent(c.Coverage)}");
             // Measured on enumerable spaces (README): when many genotypes spell a few networks and one genotype
             // spells many others, Chao1 falls short even at 60% coverage; say so every time.
-            output.WriteLine(c.Coverage < 0.5
+            if (c.Doubletons == 0 && c.Singletons == c.Observed && c.Observed > 1)
+                output.WriteLine("               no network was seen twice: the space holds far more networks than these samples can count; the estimate and its interval are a floor only");
+            else output.WriteLine(c.Coverage < 0.5
                 ? "               the samples cover little of the space: read the estimate as a lower bound (Chao1 misses rare networks beyond what it sees)"
                 : "               Chao1 is a lower bound when networks differ much in how many genotypes spell them; more samples narrow the gap");
         }
