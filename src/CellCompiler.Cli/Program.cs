@@ -16,6 +16,8 @@ var commands = new CommandSet(
         ("calibrate", CalibrateCommand.Create),
         ("merge", MergeCommand.Create),
         ("sample", SampleCommand.Create),
+        ("space", SpaceCommand.Create),
+        ("mutate", MutateCommand.Create),
         ("scale", ScaleCommand.Create),
         ("render", RenderCommand.Create),
         ("inspect", InspectCommand.Create),

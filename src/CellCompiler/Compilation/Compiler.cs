@@ -50,13 +50,7 @@ public static class Compiler
         if (options.Opset is < OnnxVersions.MinOpset or > OnnxVersions.MaxOpset)
             throw new ArgumentOutOfRangeException(nameof(options), $"opset must be {OnnxVersions.MinOpset} to {OnnxVersions.MaxOpset}");
 
-        // The contract's op limit covers the whole expanded network, so the skeleton's cell count multiplies the cell.
-        var totalCells = skeleton.Stages.Sum(s => (long)s.Cells);
-        if (ExpansionSize.CellPrimitiveOps(genotype) * totalCells > Limits.MaxExpandedPrimitiveOps)
-            throw new CompileException(
-                $"the expanded network ({totalCells} cells of up to {ExpansionSize.CellPrimitiveOps(genotype):N0} primitive ops each) " +
-                $"exceeds the limit of {Limits.MaxExpandedPrimitiveOps:N0} primitive ops");
-
+        CheckExpandedSize(genotype, skeleton);
         var liveness = Liveness.Analyse(genotype);
         if (hashes is null || hashes.Merge != skeleton.Merge)
             hashes = GenotypeHasher.Hashes(genotype, liveness, skeleton.Merge);
@@ -67,6 +61,28 @@ public static class Compiler
             throw new CompileException(
                 $"the model's weights take {figures.WeightBytes:N0} bytes; an ONNX file holds at most 2 GiB. Use fewer or narrower cells.");
         return new CompiledFigures(genotype.Name, hashes, options, shaped, figures, network.Warnings);
+    }
+
+    /// <summary>
+    /// The cost figures alone (params, MACs, memory): the same lowering, shape inference and counter as
+    /// <see cref="Compile"/>, without hashing or emitting ONNX. For surveys of many genotypes (`cellc space`).
+    /// </summary>
+    /// <exception cref="DeadCellException">the cell's output does not depend on its input</exception>
+    /// <exception cref="CompileException">the network cannot be formed or would be too large</exception>
+    public static NetworkFigures Figures(Genotype genotype, Skeleton skeleton)
+    {
+        CheckExpandedSize(genotype, skeleton);
+        return FigureCounter.Count(ShapeInference.Infer(Lowerer.Lower(genotype, skeleton)));
+    }
+
+    /// <summary>The contract's op limit covers the whole expanded network, so the skeleton's cell count multiplies the cell.</summary>
+    private static void CheckExpandedSize(Genotype genotype, Skeleton skeleton)
+    {
+        var totalCells = skeleton.Stages.Sum(s => (long)s.Cells);
+        if (ExpansionSize.CellPrimitiveOps(genotype) * totalCells > Limits.MaxExpandedPrimitiveOps)
+            throw new CompileException(
+                $"the expanded network ({totalCells} cells of up to {ExpansionSize.CellPrimitiveOps(genotype):N0} primitive ops each) " +
+                $"exceeds the limit of {Limits.MaxExpandedPrimitiveOps:N0} primitive ops");
     }
 
     /// <summary>
