@@ -40,26 +40,36 @@ public static class CommandRunner
         switch (e)
         {
             case InputException input:
-                Console.Error.WriteLine($"cellc: error: {Output.TerminalText.Safe(input.Message)}");
+                Error("cellc: error: ", input.Message);
                 return ExitCodes.BadInput;
             case DeadCellException dead:
-                Console.Error.WriteLine($"cellc: {Output.TerminalText.Safe(dead.Message)}");
+                Error("cellc: ", dead.Message);
                 return ExitCodes.CandidateFailed;
             case CompileException compile:
-                Console.Error.WriteLine($"cellc: error: {Output.TerminalText.Safe(compile.Message)}");
+                Error("cellc: error: ", compile.Message);
                 return ExitCodes.BadInput;
             case OutputException output:
-                Console.Error.WriteLine($"cellc: error: {Output.TerminalText.Safe(output.Message)}");
+                Error("cellc: error: ", output.Message);
                 return ExitCodes.BadInput;
             case IOException or UnauthorizedAccessException:
                 // The machine, not the candidate: a full disk, a vanished folder, a permission.
-                Console.Error.WriteLine($"cellc: error: {Output.TerminalText.Safe(e.Message)}");
+                Error("cellc: error: ", e.Message);
                 return ExitCodes.BadInput;
             default:
                 // A bug, not bad input: say so plainly, still without a stack trace.
-                Console.Error.WriteLine($"cellc: internal error ({e.GetType().Name}): {Output.TerminalText.Safe(e.Message)}");
+                Error($"cellc: internal error ({e.GetType().Name}): ", e.Message);
                 Console.Error.WriteLine("This is a bug in cellc; please report it with the input that caused it.");
                 return 70;
         }
+    }
+
+    /// <summary>
+    /// One line per line of the message (a file with several problems names each on its own line),
+    /// each escaped for the terminal and led by the same prefix.
+    /// </summary>
+    private static void Error(string prefix, string message)
+    {
+        foreach (var line in message.Split('\n'))
+            Console.Error.WriteLine(prefix + Output.TerminalText.Safe(line.TrimEnd('\r')));
     }
 }
