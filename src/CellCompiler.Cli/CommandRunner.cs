@@ -40,7 +40,9 @@ public static class CommandRunner
         switch (e)
         {
             case InputException input:
-                Error("cellc: error: ", input.Message);
+                // Every problem of the file on its own line, each with the file and its JSON path.
+                foreach (var problem in input.Problems)
+                    Error("cellc: error: ", problem.Describe(input.Origin));
                 return ExitCodes.BadInput;
             case DeadCellException dead:
                 Error("cellc: ", dead.Message);
@@ -63,13 +65,7 @@ public static class CommandRunner
         }
     }
 
-    /// <summary>
-    /// One line per line of the message (a file with several problems names each on its own line),
-    /// each escaped for the terminal and led by the same prefix.
-    /// </summary>
-    private static void Error(string prefix, string message)
-    {
-        foreach (var line in message.Split('\n'))
-            Console.Error.WriteLine(prefix + Output.TerminalText.Safe(line.TrimEnd('\r')));
-    }
+    /// <summary>One message on one line, escaped for the terminal (file-borne text may hold control characters).</summary>
+    private static void Error(string prefix, string message) =>
+        Console.Error.WriteLine(prefix + Output.TerminalText.Safe(message));
 }

@@ -128,6 +128,7 @@ public sealed class LatencyTableTests
         { "unknown unit", "units[0].unit: 'widget 3x3' is not a unit" },
         { "repeated unit", "is listed twice" },
         { "other format", "format: must be \"latency-table/1\"" },
+        { "null unit", "units[1]: must be an object" },
     };
 
     [Theory]
@@ -149,6 +150,7 @@ public sealed class LatencyTableTests
             case "unknown unit": units[0]!["unit"] = "widget 3x3"; text = json.ToJsonString(); break;
             case "repeated unit": units.Add(units[0]!.DeepClone()); text = json.ToJsonString(); break;
             case "other format": json["format"] = "latency-table/0"; text = json.ToJsonString(); break;
+            case "null unit": units.Insert(1, null); text = json.ToJsonString(); break;
             default: throw new ArgumentException(damage);
         }
         File.WriteAllText(path, text);

@@ -101,6 +101,9 @@ public static class LatencyTableFile
         {
             var u = document.Units[i];
             var path = string.Create(CultureInfo.InvariantCulture, $"units[{i}]");
+            // Element nullability is not enforced by the serializer: a hand-edited `null` is bad input.
+            if (u is null)
+                throw Bad(origin, path, "must be an object with unit, ms, how, measured and load, found null");
             var kind = u.Unit.Split(' ', 2)[0];
             if (!LatencyUnit.KindWords.Contains(kind))
                 throw Bad(origin, path + ".unit", $"'{u.Unit}' is not a unit (it must start with one of {string.Join(", ", LatencyUnit.KindWords)})");
@@ -127,8 +130,8 @@ public static class LatencyTableFile
         if (Scan(utf8, isFinalBlock: true) is not { } error) return;
         // Read as a block that more bytes could follow: no error then means the text was merely cut off.
         if (Scan(utf8, isFinalBlock: false) is null)
-            throw Bad(origin, "", "the JSON ends early: the file is cut short (truncated); make it again with cellc calibrate");
-        throw Bad(origin, "", $"not valid JSON at line {error.LineNumber + 1}, byte {error.BytePositionInLine + 1}: the file is damaged; make it again with cellc calibrate");
+            throw Bad(origin, "", "the JSON ends early: the file is cut short (truncated); delete it and make it again with cellc calibrate");
+        throw Bad(origin, "", $"not valid JSON at line {error.LineNumber + 1}, byte {error.BytePositionInLine + 1}: the file is damaged; delete it and make it again with cellc calibrate");
     }
 
     private static JsonException? Scan(byte[] utf8, bool isFinalBlock)
