@@ -69,8 +69,17 @@ public sealed class ReliabilityTests
         var size = int.Parse(Environment.GetEnvironmentVariable("CELLC_RELIABILITY_CANDIDATES") ?? "400");
         var moments = int.Parse(Environment.GetEnvironmentVariable("CELLC_RELIABILITY_KILLS") ?? "20");
         var population = folder.Write("pop.jsonl", Population(size, 20_000));
+        var clock = Stopwatch.StartNew();
         var reference = Records(ProcessRunner.Cellc(["check", population, "--json", "--no-cache", "--jobs", "2"], null, folder.Path).Stdout);
+        var wholeRunMs = (int)clock.ElapsedMilliseconds;
         Assert.Equal(size, reference.Count);
+        // Kill moments scale with this machine's speed: up to the start-up time plus a share of the
+        // work, so that the kills spread over start-up and the whole run instead of the population
+        // finishing within the first few attempts on a fast machine.
+        clock.Restart();
+        ProcessRunner.Cellc(["--version"], null, folder.Path);
+        var startUpMs = (int)clock.ElapsedMilliseconds;
+        var latestKillMs = startUpMs + Math.Max(100, (wholeRunMs - startUpMs) / moments);
 
         var output = folder.File("results.jsonl");
         var random = new Random(2026); // fixed seed: the same 20 moments in every run of the test
@@ -79,7 +88,7 @@ public sealed class ReliabilityTests
         {
             using var process = Start(folder.Path, ["check", population, "--out", output, "--no-cache", "--jobs", "2", .. attempt == 0 ? Array.Empty<string>() : ["--resume"]]);
             // Anywhere from start-up (settings, truncation, reading the earlier records) to mid-run.
-            Thread.Sleep(random.Next(100, 1500));
+            Thread.Sleep(random.Next(Math.Min(100, latestKillMs), latestKillMs + 1));
             if (process.HasExited) break;
             process.Kill(entireProcessTree: true); // SIGKILL
             process.WaitForExit();

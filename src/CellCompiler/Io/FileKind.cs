@@ -20,7 +20,14 @@ internal static class FileKind
     {
         if (!OperatingSystem.IsLinux()) return false;
         var buffer = new byte[256];
-        if (Statx(AtCurrentDirectory, path, 0, StatxType, buffer) != 0) return false; // missing: a new regular file
+        try
+        {
+            if (Statx(AtCurrentDirectory, path, 0, StatxType, buffer) != 0) return false; // missing: a new regular file
+        }
+        catch (Exception e) when (e is DllNotFoundException or EntryPointNotFoundException)
+        {
+            return false; // a C library without statx (older than glibc 2.28): replace as before
+        }
         var type = BitConverter.ToUInt16(buffer, ModeOffset) & TypeMask;
         return type != RegularFile && !Directory.Exists(path);
     }
