@@ -55,10 +55,8 @@ public static partial class GenotypeReader
         string? meta = null;
         if (root.Has("meta")) problems.Try(() => meta = ReadMeta(root.Property("meta")));
 
-        var declared = root.Has("primitives") ? PrimitiveDeclarations.Read(root.Property("primitives"), problems) : [];
-        PrimitiveTable table;
-        try { table = declared.Count == 0 ? PrimitiveTable.BuiltinsOnly : new PrimitiveTable(declared); }
-        catch (ArgumentException) { return null; } // a bad name: already recorded by the declaration reader
+        var (declared, table) = PrimitiveDeclarations.ReadField(root, problems);
+        if (table is null) return null;
 
         if (!root.Has("levels"))
         {

@@ -29,6 +29,18 @@ public static partial class PrimitiveDeclarations
         return new PrimitiveTable(declarations);
     }
 
+    /// <summary>
+    /// A document's optional `primitives` field (genotypes and spaces alike): the declarations in file
+    /// order and their table (the built-ins alone when there are none); a null table when a
+    /// declaration was bad, its problem already recorded.
+    /// </summary>
+    internal static (List<(string Name, PrimitiveDefinition Definition)> Declared, PrimitiveTable? Table) ReadField(JsonWalk root, ProblemList problems)
+    {
+        var declared = root.Has("primitives") ? Read(root.Property("primitives"), problems) : [];
+        try { return (declared, declared.Count == 0 ? PrimitiveTable.BuiltinsOnly : new PrimitiveTable(declared)); }
+        catch (ArgumentException) { return (declared, null); } // a bad name: already recorded by Read
+    }
+
     internal static List<(string, PrimitiveDefinition)> Read(JsonWalk walk, ProblemList problems)
     {
         var declared = new List<(string, PrimitiveDefinition)>();
