@@ -61,6 +61,13 @@ public sealed class ReliabilityTests
         public void Dispose() => ProcessRunner.Run("umount", [Path]);
     }
 
+    /// <summary>Whole lines in a results file being written (0 when it does not exist yet).</summary>
+    private static int LineCount(string path)
+    {
+        try { return File.ReadAllBytes(path).Count(b => b == (byte)'\n'); }
+        catch (IOException) { return 0; }
+    }
+
     [Fact]
     public void Killed_at_20_random_moments_and_resumed_the_file_equals_an_uninterrupted_run()
     {
@@ -87,8 +94,14 @@ public sealed class ReliabilityTests
         for (var attempt = 0; attempt < moments; attempt++)
         {
             using var process = Start(folder.Path, ["check", population, "--out", output, "--no-cache", "--jobs", "2", .. attempt == 0 ? Array.Empty<string>() : ["--resume"]]);
-            // Anywhere from start-up (settings, truncation, reading the earlier records) to mid-run.
-            Thread.Sleep(random.Next(Math.Min(100, latestKillMs), latestKillMs + 1));
+            // Anywhere from start-up (settings, truncation, reading the earlier records) to mid-run, but
+            // at the latest once this run has added a small share of the records: however fast the
+            // machine, the twenty kills then spread over the whole population.
+            var before = LineCount(output);
+            var deadline = Stopwatch.StartNew();
+            var waitMs = random.Next(Math.Min(100, latestKillMs), latestKillMs + 1);
+            while (deadline.ElapsedMilliseconds < waitMs && !process.HasExited && LineCount(output) - before < size / (2 * moments))
+                Thread.Sleep(5);
             if (process.HasExited) break;
             process.Kill(entireProcessTree: true); // SIGKILL
             process.WaitForExit();
