@@ -24,8 +24,9 @@ public static class Wording
     {
         if (value == 0 || !double.IsFinite(value)) return value.ToString("0", CultureInfo.InvariantCulture);
         var magnitude = (int)Math.Floor(Math.Log10(Math.Abs(value)));
-        var decimals = Math.Max(0, 2 - magnitude);
+        var decimals = Math.Clamp(2 - magnitude, 0, 15); // Math.Round takes at most 15 digits; smaller values print as 0
         var rounded = Math.Round(value, decimals);
+        if (rounded == 0) return "0";
         if (rounded != 0 && (int)Math.Floor(Math.Log10(Math.Abs(rounded))) > magnitude) decimals = Math.Max(0, decimals - 1);
         return rounded.ToString(decimals == 0 ? "#,0" : "F" + decimals, CultureInfo.InvariantCulture);
     }

@@ -49,6 +49,9 @@ public sealed class SpaceCommandTests
         Assert.StartsWith("chao1", report.GetProperty("estimator").GetProperty("name").GetString());
         // 300 samples of 6^46 genotypes cover nothing: the estimate is flagged as a floor.
         Assert.True(report.GetProperty("estimator").GetProperty("lower_bound_only").GetBoolean());
+        // Every sample a different network: nothing excludes that almost every live genotype is its own network.
+        Assert.Equal("good-turing", report.GetProperty("estimator").GetProperty("upper_end").GetString());
+        Assert.True(interval[1] > 1e35, $"upper end {interval[1]}");
         // The same seed gives the same report.
         var again = Space(temp, """
             {"format":"space/1","levels":[{"nodes":4,"motifs":6,"ops":["conv1x1","dwconv3x3","sepconv3x3","maxpool3x3","identity","none"]},
@@ -56,6 +59,23 @@ public sealed class SpaceCommandTests
             """, "--samples", "300", "--seed", "4", "-j", "1");
         Assert.Equal(networks, again.GetProperty("distinct_networks").GetDouble());
         Assert.Equal(report.GetProperty("figures").GetProperty("params").ToString(), again.GetProperty("figures").GetProperty("params").ToString());
+    }
+
+    [Fact]
+    public void TheSummaryOfAnAstronomicalSpaceWritesItsBoundsWithAnExponent()
+    {
+        // 6^46 = 6.23e35 genotypes, 300 samples all different networks: the Good-Turing upper end is
+        // about every live genotype, far past the last unit (T); the summary must still print it.
+        using var temp = new TempFolder();
+        var path = temp.Write("tidepool-space.json", """
+            {"format":"space/1","levels":[{"nodes":4,"motifs":6,"ops":["conv1x1","dwconv3x3","sepconv3x3","maxpool3x3","identity","none"]},
+                                          {"nodes":5,"ops":["*"]}]}
+            """);
+        var result = ProcessRunner.Cellc(["space", path, "--samples", "300", "--seed", "4"], null, temp.Path);
+        Assert.True(result.ExitCode == 0, result.Stderr);
+        var networks = result.Stdout.Split('\n').Single(line => line.TrimStart().StartsWith("networks", StringComparison.Ordinal));
+        Assert.Matches(@"to 6\.\d+e35; Chao1", networks);
+        Assert.Contains("the estimate is a floor", result.Stdout);
     }
 
     [Fact]

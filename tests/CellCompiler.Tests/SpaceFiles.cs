@@ -43,5 +43,18 @@ internal static class SpaceFiles
          "levels":[{"nodes":3,"ops":["none","identity","s1","s2","mb"]}]}
         """;
 
+    /// <summary>A space of this class by its field name (readable names in theory data).</summary>
+    public static string ByName(string name) => name switch
+    {
+        nameof(Flat4Five) => Flat4Five,
+        nameof(Flat3All) => Flat3All,
+        nameof(Flat4Three) => Flat4Three,
+        nameof(Flat4Four) => Flat4Four,
+        nameof(TwoLevels) => TwoLevels,
+        nameof(TwoMotifs) => TwoMotifs,
+        nameof(Declared) => Declared,
+        _ => throw new ArgumentException($"no test space named {name}", nameof(name)),
+    };
+
     public static SearchSpace Parse(string json, string name = "space") => SpaceReader.Parse(json, name + ".json", name);
 }

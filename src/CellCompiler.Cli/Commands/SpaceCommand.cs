@@ -54,7 +54,7 @@ public static class SpaceCommand
         var command = new Command("space",
             "Report a search space: its exact genotype count, its dead fraction and its distinct networks (by network_hash " +
             "under the skeleton's merge mode; exact by enumeration up to --enumerate-limit genotypes, else estimated from " +
-            "uniform samples with Chao1 and 95% intervals), and params and MACs percentiles of live samples under the skeleton.");
+            "uniform samples: Chao1 with a Good-Turing upper end, 95% intervals), and params and MACs percentiles of live samples under the skeleton.");
         command.Arguments.Add(spaceFile);
         foreach (var option in new Option[] { enumerateLimit, samples, seed, jobs, json })
             command.Options.Add(option);
@@ -141,7 +141,8 @@ public static class SpaceCommand
             WriteInterval(writer, "dead_fraction_interval", s.DeadFraction);
             writer.WriteNumber("distinct_networks", Math.Round(s.Networks.Value, 1));
             WriteInterval(writer, "distinct_networks_interval", s.Networks, digits: 1);
-            var c = s.Estimate!;
+            var estimate = s.Estimate!;
+            var c = estimate.Chao1;
             writer.WriteStartObject("estimator");
             writer.WriteString("name", c.Form switch
             {
@@ -157,7 +158,14 @@ public static class SpaceCommand
             writer.WriteNumber("doubletons", c.Doubletons);
             writer.WriteNumber("variance", Math.Round(c.Variance, 3));
             writer.WriteNumber("coverage", Math.Round(c.Coverage, 6));
-            // Chao1 is a lower bound; with little coverage (README, measured) it is a floor, not an estimate of the size.
+            writer.WriteNumber("chao1", Math.Round(c.Estimate, 1));
+            WriteInterval(writer, "chao1_interval", new Bounded(c.Estimate, c.Lower, c.Upper), digits: 1);
+            writer.WriteString("upper_end", "good-turing");
+            writer.WriteNumber("missing_mass", Math.Round(estimate.Missing.Estimate, 6));
+            WriteInterval(writer, "missing_mass_interval", new Bounded(estimate.Missing.Estimate, estimate.Missing.Lower, estimate.Missing.Upper));
+            writer.WriteNumber("live_genotypes_upper", Math.Round(estimate.LiveGenotypesUpper, 1));
+            writer.WriteBoolean("maybe_all_seen", estimate.MaybeAllSeen);
+            // The value is Chao1, a lower bound; with little coverage (README, measured) read it as a floor. The interval holds either way.
             writer.WriteBoolean("lower_bound_only", c.Coverage < 0.5);
             writer.WriteEndObject();
             writer.WriteString("dead_fraction_method", "Wilson score interval, 95%");
@@ -219,20 +227,21 @@ public static class SpaceCommand
         }
         else
         {
-            var c = s.Estimate!;
+            var estimate = s.Estimate!;
+            var c = estimate.Chao1;
             output.WriteLine($"  method       estimated from {Wording.Counted(s.Samples, "uniform sample")} (seed {s.Options.Seed}); 95% intervals");
             output.WriteLine($"  dead         {Percent(s.DeadFraction.Value)}  ({Percent(s.DeadFraction.Lower)} to {Percent(s.DeadFraction.Upper)}, Wilson)");
             output.WriteLine($"  networks     about {Formatting.Scaled(s.Networks.Value)} distinct under {merge} merges " +
-                $"({Formatting.Scaled(s.Networks.Lower)} to {Formatting.Scaled(s.Networks.Upper)}, Chao1{(c.Form == Chao1Form.BiasCorrected ? " bias-corrected" : "")})");
+                $"({Formatting.Scaled(s.Networks.Lower)} to {Formatting.Scaled(s.Networks.Upper)}; Chao1{(c.Form == Chao1Form.BiasCorrected ? " bias-corrected" : "")}, upper end Good-Turing)");
             output.WriteLine($"               {c.Observed.ToString("N0", Invariant)} seen in {c.Sample.ToString("N0", Invariant)} live samples, " +
-                $"{c.Singletons.ToString("N0", Invariant)} once, {c.Doubletons.ToString("N0", Invariant)} twice; sample coverage {Percent(c.Coverage)}");
+                $"{c.Singletons.ToString("N0", Invariant)} once, {c.Doubletons.ToString("N0", Invariant)} twice; unseen networks hold about {Percent(estimate.Missing.Estimate)} of live genotypes");
             // Measured on enumerable spaces (README): when many genotypes spell a few networks and one genotype
-            // spells many others, Chao1 falls short even at 60% coverage; say so every time.
+            // spells many others, Chao1 falls short even at 60% coverage, while the interval still holds.
             if (c.Doubletons == 0 && c.Singletons == c.Observed && c.Observed > 1)
-                output.WriteLine("               no network was seen twice: the space holds far more networks than these samples can count; the estimate and its interval are a floor only");
+                output.WriteLine("               no network was seen twice: the space holds far more networks than these samples can count; the estimate is a floor, the interval's upper end a bound");
             else output.WriteLine(c.Coverage < 0.5
-                ? "               the samples cover little of the space: read the estimate as a lower bound (Chao1 misses rare networks beyond what it sees)"
-                : "               Chao1 is a lower bound when networks differ much in how many genotypes spell them; more samples narrow the gap");
+                ? "               the samples cover little of the space: read the estimate as a floor; the interval allows for the networks they missed"
+                : "               Chao1 reads low when networks differ much in how many genotypes spell them; the interval allows for that");
         }
         if (s.InexactHashes > 0)
             output.WriteLine($"  caution      {s.InexactHashes:N0} hashes hit the search budget; a network may be counted more than once");

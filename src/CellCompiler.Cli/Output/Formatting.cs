@@ -19,6 +19,8 @@ public static class Formatting
     /// <summary>A count in k, M, G or T with three significant digits: "76.1 k", "4.00 M", "512".</summary>
     public static string Scaled(double value) => Math.Abs(value) switch
     {
+        // Past the last unit (a space's estimated networks can reach 1e35): three digits and an exponent, as "6.23e35".
+        >= 999.5e12 => value.ToString("0.##e0", Invariant),
         >= 999.5e9 => Wording.Significant(value / 1e12) + " T",
         >= 999.5e6 => Wording.Significant(value / 1e9) + " G",
         >= 999.5e3 => Wording.Significant(value / 1e6) + " M",

@@ -30,9 +30,9 @@ public sealed record Bounded(double Value, double Lower, double Upper)
 /// <param name="Exact">True: every genotype was enumerated; false: dead fraction and networks are estimated from the sample.</param>
 /// <param name="Enumeration">The exact counts, when enumerated.</param>
 /// <param name="Networks">Distinct live networks by network_hash under the skeleton's merge mode.</param>
-/// <param name="Estimate">The Chao1 estimate behind <paramref name="Networks"/> when estimated.</param>
+/// <param name="Estimate">The estimate behind <paramref name="Networks"/> when estimated.</param>
 public sealed record SpaceSurvey(SearchSpace Space, Skeleton Skeleton, SurveyOptions Options, bool Exact,
-    EnumerationResult? Enumeration, Bounded DeadFraction, Bounded Networks, ClassEstimate? Estimate,
+    EnumerationResult? Enumeration, Bounded DeadFraction, Bounded Networks, NetworkCountEstimate? Estimate,
     int Samples, long SampleDead, long SampleNetworks, long InexactHashes, FigureSummary Figures, TimeSpan Elapsed)
 {
     public string Method => Exact ? "exact" : "estimated";
@@ -41,7 +41,8 @@ public sealed record SpaceSurvey(SearchSpace Space, Skeleton Skeleton, SurveyOpt
 /// <summary>
 /// `cellc space`: counts a space's genotypes exactly, finds its dead fraction and its distinct
 /// networks (exactly by enumeration up to <see cref="SurveyOptions.EnumerateLimit"/> genotypes,
-/// otherwise estimated from uniform samples with Chao1 and a binomial interval), and the params and
+/// otherwise estimated from uniform samples: Wilson's interval for the dead fraction, Chao1 with a
+/// Good-Turing upper bound for the networks), and the params and
 /// MACs of live samples under the skeleton.
 /// </summary>
 public static class SpaceSurveyor
@@ -72,7 +73,7 @@ public static class SpaceSurveyor
 
         var frequencies = sample.NetworkFrequencies().ToList();
         Bounded dead, networks;
-        ClassEstimate? estimate = null;
+        NetworkCountEstimate? estimate = null;
         if (enumeration is not null)
         {
             dead = Bounded.Exactly((double)enumeration.Dead / enumeration.Genotypes);
@@ -81,8 +82,8 @@ public static class SpaceSurveyor
         else
         {
             dead = Wilson(sample.DeadCount, sample.Count);
-            estimate = Chao1.Estimate(frequencies);
-            networks = new Bounded(estimate.Estimate, estimate.Lower, estimate.Upper);
+            estimate = NetworkCountEstimate.From(frequencies, (double)space.Genotypes * (1 - dead.Lower));
+            networks = estimate.Networks;
         }
         return new SpaceSurvey(space, skeleton, options, exact, enumeration, dead, networks, estimate,
             sample.Count, sample.DeadCount, frequencies.Count, (enumeration?.InexactHashes ?? 0) + sample.InexactHashes, figures, clock.Elapsed);
@@ -100,6 +101,9 @@ public static class SpaceSurveyor
         var z2 = z * z;
         var centre = (p + z2 / (2 * n)) / (1 + z2 / n);
         var half = z / (1 + z2 / n) * Math.Sqrt(p * (1 - p) / n + z2 / (4.0 * n * n));
-        return new Bounded(p, Math.Max(0, centre - half), Math.Min(1, centre + half));
+        // At 0 and at n one end is exactly 0 or 1; computed, it is that plus rounding noise (1e-19 and the like).
+        var lower = successes == 0 ? 0 : Math.Max(0, centre - half);
+        var upper = successes == n ? 1 : Math.Min(1, centre + half);
+        return new Bounded(p, lower, upper);
     }
 }
