@@ -10,7 +10,7 @@ public sealed record MissingMass(double Estimate, double Lower, double Upper);
 ///   parameters", Biometrika 40, 237-264: the missing mass is about f1 / n (Turing's formula).
 ///   Esty, W. W. (1983), "A normal limit law for a nonparametric estimator of the coverage of a random
 ///   sample", Annals of Statistics 11, 905-912: the error of that estimate is asymptotically normal
-///   with variance (f1 + 2 f2 - f1^2 / n) / n^2 (the form as we recall it from that paper).
+///   with variance (f1 + 2 f2 - f1^2 / n) / n^2 (as the paper's zbMATH review, Zbl 0599.62053, states it).
 /// Unlike Chao1 it needs no assumption on how class sizes vary, and f1 / n errs upward on average
 /// (its expectation is the missing mass of a sample one draw smaller), which suits an upper bound.
 /// </summary>
