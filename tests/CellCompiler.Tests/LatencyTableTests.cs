@@ -85,6 +85,33 @@ public sealed class LatencyTableTests
         Assert.Equal("over --max-predicted-latency-ms", record.GetProperty("reason_kind").GetString());
     }
 
+    [Fact]
+    public void ACandidateOverThePredictedBudgetIsNotRunUnlessAsked()
+    {
+        // Outside --static a check runs every candidate on ONNX Runtime; the prediction (314 ms from
+        // the hand-built table) comes before the run, so a candidate over the budget is spared it,
+        // as with every budget that needs no run, and --run-over-budget still runs it.
+        using var folder = new TempFolder();
+        var table = WriteHandTable(folder);
+        var genotype = WriteGenotype(folder);
+        var spared = OnlyRecord(ProcessRunner.Cellc("check", genotype, "--latency-table", table,
+            "--max-predicted-latency-ms", "300", "--json", "--no-cache"));
+        Assert.Equal("over_budget", spared.GetProperty("status").GetString());
+        Assert.False(spared.GetProperty("smoke_tested").GetBoolean());
+        Assert.EndsWith("not run on ONNX Runtime (already over budget)", spared.GetProperty("reason").GetString());
+        Assert.Equal(314.0625, spared.GetProperty("latency_predicted_ms").GetDouble());
+
+        var run = OnlyRecord(ProcessRunner.Cellc("check", genotype, "--latency-table", table,
+            "--max-predicted-latency-ms", "300", "--run-over-budget", "--json", "--no-cache"));
+        Assert.Equal("over_budget", run.GetProperty("status").GetString());
+        Assert.True(run.GetProperty("smoke_tested").GetBoolean());
+
+        var within = OnlyRecord(ProcessRunner.Cellc("check", genotype, "--latency-table", table,
+            "--max-predicted-latency-ms", "320", "--json", "--no-cache"));
+        Assert.Equal("ok", within.GetProperty("status").GetString());
+        Assert.True(within.GetProperty("smoke_tested").GetBoolean());
+    }
+
     public static TheoryData<string, string, string> Mismatches => new()
     {
         { "processor", "Imaginary Tidepool CPU 9000", "conditions.processor" },

@@ -21,7 +21,7 @@ namespace CellCompiler.Screening;
 /// an equivalent genotype (equal hash) checked before under the same settings is answered from it.
 /// Time and memory are bounded: a network of more than <see cref="CheckOptions.MaxRunNodes"/> nodes
 /// or whose run would not fit in the <see cref="MemoryGuard"/> is compiled but not run.
-/// With a latency table every candidate that compiled gets a predicted latency (units the table
+/// With a latency table every candidate that compiles gets a predicted latency, before it is run (units the table
 /// lacks are measured first, with the machine to themselves); in static mode nothing is run on ONNX
 /// Runtime and the compile draws no weights.
 /// Thread-safe: one checker serves all workers of a run.
@@ -64,28 +64,23 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         if (candidate.Genotype is not { } genotype)
             return Failed(candidate, null, CheckStatus.Invalid, candidate.Error!.OneLine, "invalid: " + Kind(candidate.Error.Problem), [], clock);
 
-        // Everything but the latency measurement is shared work; the measurement waits until none runs.
-        var (hashes, warnings, notes, evaluation, cached, model, latencyKey, units) = _gate.Shared(() => Prepare(genotype));
-        if (!evaluation.Works)
-            return Failed(candidate, hashes, evaluation.Failure!.Value, evaluation.FailureReason!, evaluation.FailureKind, warnings, clock, cached) with { Notes = notes };
+        // The prediction comes first, so that a candidate over --max-predicted-latency-ms is not run.
+        var liveness = Liveness.Analyse(genotype);
+        var (predicted, predictionFailure) = Predict(genotype, liveness);
 
-        double? predicted = null;
-        if (units is not null)
-        {
-            try
+        // Everything but the latency measurements is shared work; a measurement waits until none runs.
+        var (hashes, warnings, notes, evaluation, cached, model, latencyKey) = _gate.Shared(() => Prepare(genotype, liveness, predicted));
+        if (!evaluation.Works)
+            return Failed(candidate, hashes, evaluation.Failure!.Value, evaluation.FailureReason!, evaluation.FailureKind, warnings, clock, cached) with
             {
-                var missing = _predictor!.Missing(units);
-                // Units measured on first use get the machine to themselves, as a latency measurement does.
-                if (missing.Count > 0) _gate.Exclusive(() => { _predictor.MeasureMissing(missing, options.Skeleton); return 0; });
-                predicted = _predictor.Sum(units);
-            }
-            catch (Exception e) when (e is not OutOfMemoryException)
-            {
-                return Failed(candidate, hashes, CheckStatus.Broken,
-                    $"latency prediction failed while measuring units missing from the table: {e.Message.ReplaceLineEndings(" ")}",
-                    "latency prediction failed", warnings, clock);
-            }
-        }
+                Notes = notes,
+                // A network that compiled has a prediction even when it failed on ONNX Runtime.
+                LatencyPredictedMs = evaluation.Figures is null ? null : predicted,
+            };
+        if (predictionFailure is not null)
+            return Failed(candidate, hashes, CheckStatus.Broken,
+                $"latency prediction failed while measuring units missing from the table: {predictionFailure.ReplaceLineEndings(" ")}",
+                "latency prediction failed", warnings, clock);
 
         var figures = evaluation.Figures!;
         var trainMemory = TrainMemory(evaluation);
@@ -152,8 +147,28 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     /// <summary>The run's budgets as records carry them: null when none was set.</summary>
     private Budgets? RecordedBudgets => options.Budgets == Budgets.None ? null : options.Budgets;
 
-    private sealed record Prepared(GenotypeHashes Hashes, IReadOnlyList<string> Warnings, IReadOnlyList<string> Notes, Evaluation Evaluation, bool Cached, byte[]? Model, string? LatencyKey,
-        UnitCounts? Units);
+    private sealed record Prepared(GenotypeHashes Hashes, IReadOnlyList<string> Warnings, IReadOnlyList<string> Notes, Evaluation Evaluation, bool Cached, byte[]? Model, string? LatencyKey);
+
+    /// <summary>
+    /// The predicted latency of a live cell when there is a table, measuring the units it lacks first
+    /// (with the machine to themselves, as a latency measurement). A failed measurement is returned,
+    /// not thrown: a candidate that does not compile reports that instead.
+    /// </summary>
+    private (double? Predicted, string? Failure) Predict(Genotype genotype, Liveness liveness)
+    {
+        if (_predictor is null || !liveness.Cell(genotype).OutputIsLive) return (null, null);
+        try
+        {
+            var units = _predictor.Count(genotype, liveness, options.Skeleton);
+            var missing = _predictor.Missing(units);
+            if (missing.Count > 0) _gate.Exclusive(() => { _predictor.MeasureMissing(missing, options.Skeleton); return 0; });
+            return (_predictor.Sum(units), null);
+        }
+        catch (Exception e) when (e is not OutOfMemoryException)
+        {
+            return (null, e.Message);
+        }
+    }
 
     /// <summary>The candidate's `meta` object as written (the reader kept it as compact JSON text).</summary>
     private static JsonElement? MetaOf(Candidate candidate)
@@ -167,9 +182,8 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     /// Hash, cache look-up, compile and smoke test; and when latency is to be measured and is not in
     /// the cache, the model bytes for it, compiled here so that no compile overlaps a measurement.
     /// </summary>
-    private Prepared Prepare(Genotype genotype)
+    private Prepared Prepare(Genotype genotype, Liveness liveness, double? predicted)
     {
-        var liveness = Liveness.Analyse(genotype);
         var hashes = GenotypeHasher.Hashes(genotype, liveness, options.Skeleton.Merge);
         var warnings = Lowerer.Warnings(genotype, liveness);
         IReadOnlyList<string> notes = liveness.Cell(genotype).OutputIsLive && !Lowerer.HasTrainableOp(genotype, liveness)
@@ -192,7 +206,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
                 found = own.Figures is null ? own : found with { Figures = own.Figures, ActivationBytesPerSample = own.ActivationBytesPerSample, OnnxBytes = null };
             }
             var result = found ?? EvaluateStatic(genotype, hashes);
-            return new Prepared(hashes, warnings, notes, result, found is not null, null, null, CountUnits(genotype, liveness, result));
+            return new Prepared(hashes, warnings, notes, result, found is not null, null, null);
         }
         var spelling = SpellingOf(genotype);
         if (found is not null && found.Spelling != spelling)
@@ -212,13 +226,13 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         if (found is not null)
         {
             // Budgets and limits are judged afresh on this spelling's figures, exactly as a run without the cache would.
-            if (NotRun(found) is { } notRun) evaluation = notRun;
+            if (NotRun(found, predicted) is { } notRun) evaluation = notRun;
             else if (found.SmokeTested) evaluation = found;
         }
         var cached = evaluation is not null;
         if (evaluation is null)
         {
-            (evaluation, model) = Evaluate(genotype, hashes);
+            (evaluation, model) = Evaluate(genotype, hashes, predicted);
             evaluation = evaluation with { Spelling = spelling };
             // Only networks that compiled are cached: a compile failure's reason names this spelling's
             // own JSON paths (every dead cell has the same hash), and finding it again is cheap.
@@ -235,14 +249,8 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
                 model = Compiler.Compile(genotype, options.Skeleton, options.Compile, hashes).OnnxBytes;
             }
         }
-        return new Prepared(hashes, warnings, notes, evaluation, cached, model, latencyKey, CountUnits(genotype, liveness, evaluation));
+        return new Prepared(hashes, warnings, notes, evaluation, cached, model, latencyKey);
     }
-
-    /// <summary>The units of a candidate that compiled and works, when a prediction is asked for.</summary>
-    private UnitCounts? CountUnits(Genotype genotype, Liveness liveness, Evaluation evaluation) =>
-        _predictor is not null && evaluation.Works && evaluation.Figures is not null
-            ? _predictor.Count(genotype, liveness, options.Skeleton)
-            : null;
 
     /// <summary>Identifies a genotype's exact spelling: the text its model records (names, order, declarations).</summary>
     private static string SpellingOf(Genotype genotype) =>
@@ -253,12 +261,13 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
 
     /// <summary>
     /// The evaluation of a compiled network that this run does not execute: over a budget that needs
-    /// no run (unless --run-over-budget), or too large for this machine. Null when it runs.
+    /// no run, the predicted latency's included (unless --run-over-budget), or too large for this
+    /// machine. Null when it runs.
     /// </summary>
-    private Evaluation? NotRun(Evaluation compiled)
+    private Evaluation? NotRun(Evaluation compiled, double? predicted)
     {
         var notRun = compiled with { Failure = null, FailureReason = null, FailureKind = null, SmokeTested = false };
-        if (!options.RunOverBudget && Judge(compiled.Figures!, TrainMemory(compiled), null, options).Item1 != CheckStatus.Ok)
+        if (!options.RunOverBudget && Judge(compiled.Figures!, TrainMemory(compiled), null, options, predicted).Item1 != CheckStatus.Ok)
             return notRun;
         return TooLargeToRun(compiled.Figures!) is { } tooLarge ? notRun with { FailureReason = tooLarge } : null;
     }
@@ -297,13 +306,13 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     private static string Gigabytes(long bytes) => Wording.Significant(bytes / 1e9);
 
     /// <summary>Compile and smoke-test: the cacheable part of a check.</summary>
-    private (Evaluation, byte[]?) Evaluate(Genotype genotype, GenotypeHashes hashes)
+    private (Evaluation, byte[]?) Evaluate(Genotype genotype, GenotypeHashes hashes, double? predicted)
     {
         var (compiled, model) = Compile(genotype, hashes);
         if (model is null) return (compiled, null);
         // Budgets that need no run are judged first: a candidate already over one is not run at all
         // unless the user asks for it.
-        if (NotRun(compiled) is { } notRun) return (notRun, model.OnnxBytes);
+        if (NotRun(compiled, predicted) is { } notRun) return (notRun, model.OnnxBytes);
         SmokeVerdict verdict;
         using (_memory.Reserve(RunEstimate(model.Figures)))
             verdict = SmokeTest.Run(model.OnnxBytes, model.InputShape.Dims, model.OutputShape.Dims, options.Compile.Seed);
