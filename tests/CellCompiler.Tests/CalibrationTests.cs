@@ -44,11 +44,15 @@ public sealed class CalibrationTests
     {
         using var folder = new TempFolder();
         var table = folder.File("table.json");
-        var result = ProcessRunner.Cellc(["calibrate", .. Small(folder), "--max-fan-in", "3", "--primitives", Declarations(folder), "-o", table], null, null);
+        var result = ProcessRunner.Cellc(["calibrate", .. Small(folder), "--max-fan-in", "3", "--primitives", Declarations(folder),
+            "--fit-networks", "3", "-o", table], null, null);
         Assert.True(result.ExitCode == 0, result.Stderr);
-        Assert.Contains("[1/13]", result.Stderr);
-        Assert.Contains("[13/13]", result.Stderr);
+        // 13 units, then the 3 whole networks of the fit.
+        Assert.Contains("[1/16]", result.Stderr);
+        Assert.Contains("[13/16] merge concat/3", result.Stderr);
+        Assert.Contains("[16/16] network 3 of the fit", result.Stderr);
         Assert.Contains("hold only", result.Stdout);
+        Assert.Contains("Fitted to 3 whole networks", result.Stdout);
 
         var json = JsonNode.Parse(File.ReadAllText(table))!;
         var units = json["units"]!.AsArray();
@@ -57,6 +61,23 @@ public sealed class CalibrationTests
         Assert.All(units, u => Assert.False(string.IsNullOrEmpty((string?)u!["how"])));
         Assert.Equal(TableConditions.Here(1, 17), LatencyTableFile.Read(table).Conditions);
         Assert.Empty(Directory.EnumerateFiles(folder.Path, "*.tmp"));
+        var fit = LatencyTableFile.Read(table).Fit!;
+        Assert.Equal(3, fit.Networks);
+        Assert.True(fit.Slope > 0);
+    }
+
+    [Fact]
+    public void WithoutFitNetworksATableKeepsNoFit()
+    {
+        // A calibration that fits nothing removes the fit of an earlier one: it does not hold for units measured again.
+        using var folder = new TempFolder();
+        var table = folder.File("table.json");
+        Assert.Equal(0, ProcessRunner.Cellc(["calibrate", .. Small(folder), "--max-fan-in", "2", "--fit-networks", "3", "-o", table], null, null).ExitCode);
+        Assert.NotNull(LatencyTableFile.Read(table).Fit);
+        var again = ProcessRunner.Cellc(["calibrate", .. Small(folder), "--max-fan-in", "2", "--fit-networks", "0", "-o", table], null, null);
+        Assert.True(again.ExitCode == 0, again.Stderr);
+        Assert.Null(LatencyTableFile.Read(table).Fit);
+        Assert.DoesNotContain("\"fit\"", File.ReadAllText(table));
     }
 
     [Fact]

@@ -39,6 +39,13 @@ public static class CalibrateCommand
             DefaultValueFactory = _ => 1,
             CustomParser = r => HumanNumber.WholeNumber(1, 256)(r),
         };
+        var fitNetworks = new Option<int>("--fit-networks")
+        {
+            HelpName = "K",
+            Description = $"Measure K whole sampled networks and fit the line from their units' sum to their time (default {CalibrationRequest.DefaultFitNetworks}; 0: predict the plain sum).",
+            DefaultValueFactory = _ => CalibrationRequest.DefaultFitNetworks,
+            CustomParser = r => HumanNumber.WholeNumber(0, 1000)(r),
+        };
         var skeleton = new SkeletonOptions();
         var settings = new CompileSettingsOptions();
 
@@ -46,7 +53,7 @@ public static class CalibrateCommand
             "Measure, with ONNX Runtime on this CPU and the session settings of `bench`, every unit a network of the skeleton can contain " +
             "(each primitive at each stage's size, merges by fan-in, the stem, reductions, head and the per-run cost) into a latency table " +
             "for `check --latency-table` and `bench --latency-table`. Run it on a quiet machine: background load distorts it.");
-        foreach (var option in new Option[] { output, primitives, maxFanIn, threads })
+        foreach (var option in new Option[] { output, primitives, maxFanIn, threads, fitNetworks })
             command.Options.Add(option);
         skeleton.AddTo(command);
         // The opset decides some ops (HardSwish before 14); the seed only weight values, which do not change latency.
@@ -56,7 +63,8 @@ public static class CalibrateCommand
         {
             var path = parse.GetValue(output)!;
             var table = parse.GetValue(primitives) is { } file ? PrimitiveDeclarations.ReadFile(file) : PrimitiveTable.BuiltinsOnly;
-            var request = new CalibrationRequest(skeleton.Resolve(parse), table, parse.GetValue(maxFanIn), parse.GetValue(threads), parse.GetValue(settings.Opset));
+            var request = new CalibrationRequest(skeleton.Resolve(parse), table, parse.GetValue(maxFanIn), parse.GetValue(threads), parse.GetValue(settings.Opset),
+                parse.GetValue(fitNetworks));
             var startLoad = SystemLoad.OneMinute();
             Console.Error.WriteLine($"cellc calibrate: {Wording.Counted(Calibration.Plan(request).Count, "unit")} of {CompileReport.DescribeSkeleton(request.Skeleton)}, " +
                                     $"{Wording.Counted(request.Threads, "thread")}, opset {request.Opset}{LoadNote(startLoad)}");
@@ -67,6 +75,11 @@ public static class CalibrateCommand
                 $"cellc calibrate: [{step.Done}/{step.Total}] {TerminalText.Safe(step.Unit)}: {step.Ms.ToString("0.0000", CultureInfo.InvariantCulture)} ms" +
                 $"  ({Formatting.Duration(step.Elapsed)} elapsed, about {Formatting.Duration(step.Remaining)} left{LoadNote(step.Load, ", load ")})"));
             var c = result.Conditions;
+            if (result.Fit is { } fit)
+                Console.Out.WriteLine($"Fitted to {Wording.Counted(fit.Networks, "whole network")}: predicted = {Wording.Significant(fit.InterceptMs)} ms + " +
+                                      $"{fit.Slope.ToString("0.000", CultureInfo.InvariantCulture)} x sum of units (mean error {Wording.Significant(fit.MeanAbsoluteErrorPercent)}% on those networks).");
+            else if (request.FitNetworks > 0)
+                Console.Out.WriteLine("No whole-network fit: too few networks could be measured or no rising line fits them; predictions are the plain sum of units.");
             Console.Out.WriteLine($"Wrote {TerminalText.Safe(path)}: {Wording.Counted(result.Count, "unit")} in all, for {TerminalText.Safe(c.Processor)}, " +
                                   $"ONNX Runtime {c.OnnxRuntime}, {Wording.Counted(c.Threads, "thread")}, opset {c.Opset}.");
             Console.Out.WriteLine("Predictions from this table hold only on this machine model, with this ONNX Runtime version, thread count and " +

@@ -1,14 +1,24 @@
 using System.Diagnostics;
+using System.Globalization;
+using CellCompiler.Compilation;
+using CellCompiler.Graph;
 using CellCompiler.Input;
+using CellCompiler.Lowering;
+using CellCompiler.Sampling;
 using CellCompiler.Vocabulary;
 
 namespace CellCompiler.Prediction;
 
 /// <summary>What `cellc calibrate` is asked to measure: every unit a network of the skeleton can contain.</summary>
-public sealed record CalibrationRequest(Skeleton Skeleton, PrimitiveTable Primitives, int MaxFanIn, int Threads, int Opset)
+/// <param name="FitNetworks">Whole networks measured for the table's <see cref="NetworkFit"/>; 0 fits none.</param>
+public sealed record CalibrationRequest(Skeleton Skeleton, PrimitiveTable Primitives, int MaxFanIn, int Threads, int Opset,
+    int FitNetworks = CalibrationRequest.DefaultFitNetworks)
 {
     /// <summary>Fan-ins calibrated up front by default; a node with more inputs is measured on first use.</summary>
     public const int DefaultMaxFanIn = 6;
+
+    /// <summary>Enough points for a line through sizes from small to large cells, at a few seconds each for proxy.</summary>
+    public const int DefaultFitNetworks = 12;
 }
 
 /// <summary>One step of a calibration, for progress displays.</summary>
@@ -61,12 +71,60 @@ public static class Calibration
                 return (current ?? new LatencyTable(here, [])).With(measured.Select(m => new KeyValuePair<string, UnitTime>(m.Unit.Key, m.Time)), replace: true);
             });
             foreach (var (unit, time) in measured)
-                progress(new CalibrationStep(++done, plan.Count, unit.Key, time.Ms, clock.Elapsed, time.Load));
+                progress(new CalibrationStep(++done, plan.Count + Math.Max(0, request.FitNetworks), unit.Key, time.Ms, clock.Elapsed, time.Load));
         }
 
         Store(meter.MeasureFrame(frame));
         foreach (var unit in plan.Where(u => u is PrimitiveUnit or MergeUnit))
             Store([(unit, meter.MeasureChain(unit))]);
-        return table!;
+
+        // The fit of an earlier calibration does not hold for units measured again: replace it, or remove it.
+        var fit = Fit(table!, request, frame, meter, (label, ms, load) =>
+            progress(new CalibrationStep(++done, plan.Count + request.FitNetworks, label, ms, clock.Elapsed, load)));
+        table = LatencyTableFile.Update(path, current => (current ?? table!).WithFit(fit));
+        return table;
+    }
+
+    /// <summary>The seed of the fit's networks: fixed, so that calibrating twice measures the same networks.</summary>
+    public const long FitSeed = 7_001;
+
+    /// <summary>
+    /// Measures <see cref="CalibrationRequest.FitNetworks"/> whole networks of the skeleton and fits the
+    /// line from their units' sum to their measured time. The networks are sampled as `cellc sample`
+    /// does by default (4-node motifs, six of them, under a 5-node cell; fewer nodes when
+    /// --max-fan-in is under 4) over the calibrated primitives and identity; dead cells, networks that cannot be formed and networks with units the table lacks
+    /// are passed over. Null when fewer than <see cref="NetworkFit.MinNetworks"/> were measured or no
+    /// rising line fits them.
+    /// </summary>
+    public static NetworkFit? Fit(LatencyTable table, CalibrationRequest request, NetworkFrame frame, UnitMeter meter,
+        Action<string, double, double?> progress)
+    {
+        if (request.FitNetworks <= 0) return null;
+        // A node of an n-node motif merges at most n - 1 inputs: keep within the calibrated fan-ins.
+        var most = request.MaxFanIn + 1;
+        var sampler = new GenotypeSampler([Math.Min(4, most), Math.Min(5, most)], [6, 1], seed: FitSeed, primitives: request.Primitives);
+        var points = new List<(double UnitSum, double MeasuredMs)>();
+        var load = SystemLoad.OneMinute();
+        for (long n = 1; points.Count < request.FitNetworks && n <= 20L * request.FitNetworks; n++)
+        {
+            var genotype = sampler.Sample(n, $"fit-{n}");
+            var liveness = Liveness.Analyse(genotype);
+            if (!liveness.Cell(genotype).OutputIsLive) continue;
+            var counts = UnitCounts.Of(genotype, liveness, frame);
+            if (counts.Items.Any(item => !table.Contains(item.Unit))) continue;
+            byte[] model;
+            try { model = Compiler.Compile(genotype, request.Skeleton, new CompileOptions(Opset: request.Opset)).OnnxBytes; }
+            catch (Exception e) when (e is CompileException or DeadCellException) { continue; }
+            var unitSum = LatencyPredictor.UnitSum(table, counts);
+            var measured = meter.MeasureNetwork(model);
+            points.Add((unitSum, measured));
+            progress(string.Create(CultureInfo.InvariantCulture, $"network {points.Count} of the fit (units sum to {unitSum:0.0000} ms)"), measured,
+                SystemLoad.OneMinute());
+        }
+        if (NetworkFit.Line(points) is not { } line) return null;
+        var how = string.Create(CultureInfo.InvariantCulture,
+            $"weighted least squares of {points.Count} sampled networks' time ({meter.QuantileName}) on their units' sum (seed {FitSeed})");
+        return new NetworkFit(Math.Round(line.Intercept, 6), Math.Round(line.Slope, 6), points.Count, Math.Round(line.MeanAbsoluteErrorPercent, 3),
+            how, DateTimeOffset.UtcNow, load);
     }
 }

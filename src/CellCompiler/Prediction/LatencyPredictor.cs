@@ -72,17 +72,27 @@ public sealed class LatencyPredictor
         return counts.Items.Select(i => i.Unit).Where(u => !table.Contains(u)).DistinctBy(u => u.Key).ToList();
     }
 
-    /// <summary>The predicted latency in ms; every unit must be in the table (see <see cref="MeasureMissing"/>).</summary>
+    /// <summary>
+    /// The predicted latency in ms: the sum of the units' times, through the table's whole-network
+    /// fit when it has one. Every unit must be in the table (see <see cref="MeasureMissing"/>).
+    /// </summary>
     public double Sum(UnitCounts counts)
     {
         var table = _table;
+        var ms = UnitSum(table, counts);
+        return Math.Round(table.Fit is { } fit ? fit.Apply(ms) : ms, 4);
+    }
+
+    /// <summary>The plain sum of the units' times (what the fit is fitted to).</summary>
+    public static double UnitSum(LatencyTable table, UnitCounts counts)
+    {
         double ms = 0;
         foreach (var (unit, count) in counts.Items)
         {
             var time = table.Find(unit) ?? throw new InvalidOperationException($"the latency table has no entry for {unit.Key}");
             ms += count * time.Ms;
         }
-        return Math.Round(ms, 4);
+        return ms;
     }
 
     /// <summary>Counts, measures what is missing, and sums: for callers that need no gate around the measurement.</summary>

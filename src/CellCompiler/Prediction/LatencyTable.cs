@@ -21,14 +21,21 @@ public sealed class LatencyTable
     // be most of a prediction's time otherwise. Valid for ever, since the table never changes.
     private readonly ConcurrentDictionary<LatencyUnit, UnitTime?> _found = new();
 
-    public LatencyTable(TableConditions conditions, IEnumerable<KeyValuePair<string, UnitTime>> units)
+    public LatencyTable(TableConditions conditions, IEnumerable<KeyValuePair<string, UnitTime>> units, NetworkFit? fit = null)
     {
         Conditions = conditions;
+        Fit = fit;
         _units = new SortedDictionary<string, UnitTime>(StringComparer.Ordinal);
         foreach (var (key, time) in units) _units[key] = time;
     }
 
     public TableConditions Conditions { get; }
+
+    /// <summary>The whole-network correction fitted at calibration; null: predictions are the plain sum of units.</summary>
+    public NetworkFit? Fit { get; }
+
+    /// <summary>This table with <paramref name="fit"/> as its correction (null removes it).</summary>
+    public LatencyTable WithFit(NetworkFit? fit) => new(Conditions, _units, fit);
 
     /// <summary>Every entry, in key order (the order the file holds them in).</summary>
     public IReadOnlyDictionary<string, UnitTime> Units => _units;
@@ -49,6 +56,6 @@ public sealed class LatencyTable
         var units = new SortedDictionary<string, UnitTime>(_units, StringComparer.Ordinal);
         foreach (var (key, time) in added)
             if (replace || !units.ContainsKey(key)) units[key] = time;
-        return new LatencyTable(Conditions, units);
+        return new LatencyTable(Conditions, units, Fit);
     }
 }

@@ -113,7 +113,21 @@ public static class LatencyTableFile
                 throw Bad(origin, path + ".unit", $"'{u.Unit}' is listed twice");
             units.Add(new(u.Unit, new UnitTime(u.Ms, u.How, u.Measured, u.Load)));
         }
-        return new LatencyTable(new TableConditions(c.Processor, c.Onnxruntime, c.Threads, c.Session, c.Opset), units);
+        return new LatencyTable(new TableConditions(c.Processor, c.Onnxruntime, c.Threads, c.Session, c.Opset), units, FitOf(document.Fit, origin));
+    }
+
+    private static NetworkFit? FitOf(FitDocument? fit, string origin)
+    {
+        if (fit is null) return null;
+        if (!double.IsFinite(fit.InterceptMs))
+            throw Bad(origin, "fit.intercept_ms", "must be a finite number of ms");
+        if (!double.IsFinite(fit.Slope) || fit.Slope <= 0)
+            throw Bad(origin, "fit.slope", $"must be a finite number above 0, found {fit.Slope.ToString(CultureInfo.InvariantCulture)}");
+        if (fit.Networks < NetworkFit.MinNetworks)
+            throw Bad(origin, "fit.networks", $"must be at least {NetworkFit.MinNetworks}, found {fit.Networks}");
+        if (!double.IsFinite(fit.MeanAbsoluteErrorPercent) || fit.MeanAbsoluteErrorPercent < 0)
+            throw Bad(origin, "fit.mean_absolute_error_percent", "must be a finite number of at least 0");
+        return new NetworkFit(fit.InterceptMs, fit.Slope, fit.Networks, fit.MeanAbsoluteErrorPercent, fit.How, fit.Measured, fit.Load);
     }
 
     private static TableDocument ToDocument(LatencyTable table)
@@ -121,7 +135,8 @@ public static class LatencyTableFile
         var c = table.Conditions;
         return new TableDocument(FormatTag,
             new ConditionsDocument(c.Processor, c.OnnxRuntime, c.Threads, c.Session, c.Opset, 1),
-            table.Units.Select(kv => new UnitDocument(kv.Key, kv.Value.Ms, kv.Value.How, kv.Value.Measured, kv.Value.Load)).ToList());
+            table.Units.Select(kv => new UnitDocument(kv.Key, kv.Value.Ms, kv.Value.How, kv.Value.Measured, kv.Value.Load)).ToList(),
+            table.Fit is { } f ? new FitDocument(f.InterceptMs, f.Slope, f.Networks, f.MeanAbsoluteErrorPercent, f.How, f.Measured, f.Load) : null);
     }
 
     /// <summary>Syntax first, so that a file cut short is told apart from a wrong field.</summary>
@@ -163,7 +178,11 @@ public static class LatencyTableFile
     private static InputException Bad(string origin, string jsonPath, string problem) => new(origin, jsonPath, problem);
 }
 
-internal sealed record TableDocument(string Format, ConditionsDocument Conditions, IReadOnlyList<UnitDocument> Units);
+internal sealed record TableDocument(string Format, ConditionsDocument Conditions, IReadOnlyList<UnitDocument> Units,
+    [property: JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)] FitDocument? Fit = null);
+
+internal sealed record FitDocument(double InterceptMs, double Slope, int Networks, double MeanAbsoluteErrorPercent, string How,
+    DateTimeOffset Measured, double? Load);
 
 internal sealed record ConditionsDocument(string Processor, string Onnxruntime, int Threads, string Session, int Opset, int Batch);
 

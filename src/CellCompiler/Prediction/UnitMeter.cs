@@ -10,9 +10,10 @@ namespace CellCompiler.Prediction;
 /// all see the same background. A probe's time is the <see cref="Quantile"/> of all its timed runs:
 /// a low quantile rather than the median, because a run that another program interrupts only ever
 /// gets slower, so on a busy machine the low quantile still reads the undisturbed time (on a quiet
-/// machine the two differ by a few percent; see the README's accuracy figures).
+/// machine the two differ by a few percent; see the README's accuracy figures). Whole networks for
+/// the fit (<see cref="NetworkFit"/>) get <see cref="NetworkRounds"/> rounds at the same quantile.
 /// </summary>
-public sealed record CalibrationSettings(int Rounds = 7, int Warmup = 5, int Runs = 40, int Copies = 8, double Quantile = 0.1)
+public sealed record CalibrationSettings(int Rounds = 7, int Warmup = 5, int Runs = 40, int Copies = 8, double Quantile = 0.1, int NetworkRounds = 3)
 {
     public static readonly CalibrationSettings Default = new();
 }
@@ -80,20 +81,31 @@ public sealed class UnitMeter(int threads, int opset, CalibrationSettings? setti
         return result;
     }
 
+    /// <summary>
+    /// A whole network's time at batch 1 over <see cref="CalibrationSettings.NetworkRounds"/> rounds of
+    /// the usual warm-up and timed runs, at the units' low quantile: like them, the undisturbed time.
+    /// </summary>
+    public double MeasureNetwork(byte[] model) => Time([model], _settings.NetworkRounds, _settings.Quantile)[0];
+
+    /// <summary>The quantile probes are timed at, in words ("10th percentile").</summary>
+    public string QuantileName => Quantile;
+
     private string Quantile => _settings.Quantile == 0.5 ? "median" : $"{_settings.Quantile * 100:0}th percentile";
 
     /// <summary>Each model's time at batch 1: the quantile of its runs over all rounds, the models timed in turn within each round.</summary>
-    private double[] Time(IReadOnlyList<byte[]> models)
+    private double[] Time(IReadOnlyList<byte[]> models) => Time(models, _settings.Rounds, _settings.Quantile);
+
+    private double[] Time(IReadOnlyList<byte[]> models, int rounds, double quantile)
     {
         var sessions = new List<Microsoft.ML.OnnxRuntime.InferenceSession>();
         try
         {
             foreach (var model in models) sessions.Add(LatencyMeter.OpenSession(model, threads));
-            var runs = sessions.Select(_ => new List<double>(_settings.Rounds * _settings.Runs)).ToList();
-            for (var r = 0; r < _settings.Rounds; r++)
+            var runs = sessions.Select(_ => new List<double>(rounds * _settings.Runs)).ToList();
+            for (var r = 0; r < rounds; r++)
                 for (var i = 0; i < sessions.Count; i++)
                     runs[i].AddRange(LatencyMeter.TimeRuns(sessions[i], 1, _settings.Warmup, _settings.Runs));
-            return runs.Select(times => LatencyStats.Percentile([.. times.Order()], _settings.Quantile)).ToArray();
+            return runs.Select(times => LatencyStats.Percentile([.. times.Order()], quantile)).ToArray();
         }
         finally
         {
