@@ -59,4 +59,17 @@ public sealed class PackageTests(PackagedCellc cellc)
         Assert.Equal(File.ReadAllBytes(folder.File("built.onnx")), File.ReadAllBytes(folder.File("installed.onnx")));
         Assert.Equal(built.Stdout.Replace("built.onnx", "X"), installed.Stdout.Replace("installed.onnx", "X"));
     }
+
+    [Fact]
+    public void The_installed_tool_finds_onnx_runtime_and_sqlite_through_its_link()
+    {
+        // The command on PATH is a link into the package folder; the native libraries are found beside its target.
+        using var folder = new TempFolder();
+        var check = cellc.Run(["check", RepoPaths.Fixture("tidepool-h3.json"), "--json", "--cache", folder.File("cache.db")], workingDirectory: folder.Path);
+        Assert.True(check.ExitCode == 0, check.Stderr);
+        var record = System.Text.Json.Nodes.JsonNode.Parse(check.Stdout)!;
+        Assert.Equal("ok", (string)record["status"]!);
+        Assert.True((bool)record["smoke_tested"]!);
+        Assert.True(new FileInfo(folder.File("cache.db")).Length > 0);
+    }
 }
