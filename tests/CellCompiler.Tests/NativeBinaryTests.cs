@@ -59,6 +59,11 @@ public sealed class NativeBinaryTests
         {
             var native = Native("compile", RepoPaths.Fixture(fixture), "-o", folder.File("native-" + fixture + ".onnx"));
             Assert.True(native.ExitCode == 0, native.Stderr);
+            // The model records the commit it was built from: a program published from an earlier commit is stale, not wrong.
+            var built = JsonNode.Parse(ProcessRunner.Cellc("inspect", folder.File("native-" + fixture + ".onnx"), "--json").Stdout)!;
+            var commit = (string?)built["metadata_props"]?["cellc_commit"];
+            Assert.True(commit == BuildInfo.Commit,
+                $"the native cellc was built from commit {commit}, these tests from {BuildInfo.Commit}: run scripts/publish-native.sh again");
             var jit = ProcessRunner.Cellc("compile", RepoPaths.Fixture(fixture), "-o", folder.File("jit-" + fixture + ".onnx"));
             Assert.Equal(0, jit.ExitCode);
             Assert.Equal(File.ReadAllBytes(folder.File("jit-" + fixture + ".onnx")), File.ReadAllBytes(folder.File("native-" + fixture + ".onnx")));
