@@ -1,12 +1,11 @@
-using System.Reflection.PortableExecutable;
 using CellCompiler.Tests.Support;
 
 namespace CellCompiler.Tests;
 
 /// <summary>
 /// The installable tool (issue 11, Installing): `dotnet pack` makes a .NET tool package of `cellc`,
-/// ahead-of-time compiled for linux-x64 (issue 10, fast start); it installs into a tool path and
-/// runs from there as a plain command, without `dotnet run`.
+/// a Native AOT program for linux-x64 (issue 10, fast start); it installs into a tool path and
+/// runs from there as a plain command, without `dotnet run` and without a .NET runtime.
 /// </summary>
 [Collection(PackagedCellc.Collection)]
 public sealed class PackageTests(PackagedCellc cellc)
@@ -34,17 +33,18 @@ public sealed class PackageTests(PackagedCellc cellc)
     }
 
     [Fact]
-    public void The_installed_tool_and_library_are_ReadyToRun_images()
+    public void The_installed_tool_is_the_native_program_without_managed_code()
     {
-        // ReadyToRun format (dotnet/runtime, docs/design/coreclr/botr/readytorun-format.md; from memory): precompiled
-        // code is found through the CLI header's ManagedNativeHeader directory, which an IL-only assembly leaves empty.
-        // The control below shows the check tells the two apart on this very build.
-        foreach (var name in new[] { "cellc.dll", "CellCompiler.dll" })
-        {
-            Assert.True(HasReadyToRunCode(Path.Combine(cellc.InstalledFolder, name)), $"installed {name} has no ReadyToRun code");
-            // Control: the ordinary (JIT) build of the same assembly has none, so the check can tell them apart.
-            Assert.False(HasReadyToRunCode(Path.Combine(AppContext.BaseDirectory, name)), $"the test build's {name} is not IL-only");
-        }
+        // The command is a link to the package's executable itself, not to a launcher that starts a .NET runtime.
+        var target = Path.Combine(cellc.InstalledFolder, "cellc");
+        Assert.Equal(target, new FileInfo(cellc.Executable).ResolveLinkTarget(returnFinalTarget: true)?.FullName);
+        // ELF header (System V ABI, from memory): 0x7F 'E' 'L' 'F'.
+        Assert.Equal(new byte[] { 0x7F, (byte)'E', (byte)'L', (byte)'F' }, File.ReadAllBytes(target)[..4]);
+        Assert.Equal(
+            ["DotnetToolSettings.xml", "cellc", "libe_sqlite3.so", "libonnxruntime.so", "libonnxruntime_providers_shared.so"],
+            Directory.GetFiles(cellc.InstalledFolder).Select(Path.GetFileName).Order(StringComparer.Ordinal));
+        // Control: the ordinary build the tests run is managed code (cellc.dll), so the listing above tells the two apart.
+        Assert.True(File.Exists(Path.Combine(AppContext.BaseDirectory, "cellc.dll")));
     }
 
     [Fact]
@@ -60,9 +60,16 @@ public sealed class PackageTests(PackagedCellc cellc)
         Assert.Equal(built.Stdout.Replace("built.onnx", "X"), installed.Stdout.Replace("installed.onnx", "X"));
     }
 
-    private static bool HasReadyToRunCode(string path)
+    [Fact]
+    public void The_installed_tool_finds_onnx_runtime_and_sqlite_through_its_link()
     {
-        using var reader = new PEReader(File.OpenRead(path));
-        return reader.PEHeaders.CorHeader!.ManagedNativeHeaderDirectory.Size > 0;
+        // The command on PATH is a link into the package folder; the native libraries are found beside its target.
+        using var folder = new TempFolder();
+        var check = cellc.Run(["check", RepoPaths.Fixture("tidepool-h3.json"), "--json", "--cache", folder.File("cache.db")], workingDirectory: folder.Path);
+        Assert.True(check.ExitCode == 0, check.Stderr);
+        var record = System.Text.Json.Nodes.JsonNode.Parse(check.Stdout)!;
+        Assert.Equal("ok", (string)record["status"]!);
+        Assert.True((bool)record["smoke_tested"]!);
+        Assert.True(new FileInfo(folder.File("cache.db")).Length > 0);
     }
 }

@@ -9,7 +9,7 @@ public enum KindFamily { Convolution, Depthwise, Factorized, Bottleneck, Pooling
 /// <summary>
 /// A kind of primitive (contract section 3.1): which parameters it takes and in what range, how
 /// it lowers to layers, and how pictures group it. Adding a kind is adding one subclass under
-/// Vocabulary/Kinds: <see cref="PrimitiveKinds"/> finds it, the reader validates its parameters,
+/// Vocabulary/Kinds and listing it in <see cref="PrimitiveKinds"/>; the reader validates its parameters,
 /// the compiler, the hash, the sampler and the pictures all go through these members.
 /// </summary>
 public abstract class PrimitiveKind

@@ -1,10 +1,12 @@
-using System.Reflection;
+using CellCompiler.Vocabulary.Kinds;
 
 namespace CellCompiler.Vocabulary;
 
 /// <summary>
-/// Every primitive kind, found once: each concrete <see cref="PrimitiveKind"/> in this assembly, so
-/// that adding a kind is adding its class and nothing else. Ordered by name.
+/// Every primitive kind, listed once and ordered by name. Listed by hand rather than found by
+/// reflection over the assembly, because the native (ahead-of-time, trimmed) build cannot create
+/// types it only meets through reflection; a test (PrimitiveKindListTests) fails when a concrete
+/// <see cref="PrimitiveKind"/> is missing here.
 /// </summary>
 public static class PrimitiveKinds
 {
@@ -24,9 +26,11 @@ public static class PrimitiveKinds
 
     private static IReadOnlyList<PrimitiveKind> Discover()
     {
-        var kinds = typeof(PrimitiveKind).Assembly.GetTypes()
-            .Where(t => t.IsSubclassOf(typeof(PrimitiveKind)) && !t.IsAbstract)
-            .Select(t => (PrimitiveKind)Activator.CreateInstance(t)!)
+        var kinds = new PrimitiveKind[]
+            {
+                new ConvKind(), new DwConvKind(), new SepConvKind(), new FactorizedKind(),
+                new MbConvKind(), new MaxPoolKind(), new AvgPoolKind(),
+            }
             .OrderBy(k => k.Name, StringComparer.Ordinal)
             .ToList();
         var duplicate = kinds.GroupBy(k => k.Name).FirstOrDefault(g => g.Count() > 1);
