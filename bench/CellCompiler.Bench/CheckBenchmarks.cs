@@ -16,6 +16,9 @@ namespace CellCompiler.Bench;
 /// was with a fully optimized smoke session. The two Smoke benchmarks time the runtime stage alone
 /// on the compiled bytes, as `check` runs it (no graph optimizations) and fully optimized (as
 /// before), so that one run shows where the difference comes from under the same conditions.
+/// These are wall-clock figures: on a machine loaded by other work they do not even order the two
+/// smoke variants consistently, and the README's CPU-time comparison of alternating pinned processes
+/// is the one to trust there.
 /// </summary>
 [MemoryDiagnoser]
 [MedianColumn]

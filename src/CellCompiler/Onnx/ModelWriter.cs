@@ -44,39 +44,44 @@ internal static class ModelWriter
         graphTail.ValueInfo.AddRange(graph.ValueInfo);
 
         var headers = initializers.Select(TensorHeader).ToArray();
+        // Each size is computed once (protobuf does not cache them) and used again for the writing.
+        var headerSizes = new int[headers.Length];
         var tensorSizes = new long[headers.Length];
-        long graphSize = graphHead.CalculateSize() + graphTail.CalculateSize();
+        var (modelHeadSize, graphHeadSize, graphTailSize, modelTailSize) =
+            (modelHead.CalculateSize(), graphHead.CalculateSize(), graphTail.CalculateSize(), modelTail.CalculateSize());
+        long graphSize = graphHeadSize + graphTailSize;
         for (var i = 0; i < headers.Length; i++)
         {
             var raw = initializers[i].ByteLength;
-            tensorSizes[i] = headers[i].CalculateSize() + 1 + VarintSize(raw) + raw;
+            headerSizes[i] = headers[i].CalculateSize();
+            tensorSizes[i] = headerSizes[i] + 1 + VarintSize(raw) + raw;
             graphSize += 1 + VarintSize(tensorSizes[i]) + tensorSizes[i];
         }
-        var total = modelHead.CalculateSize() + 1 + VarintSize(graphSize) + graphSize + modelTail.CalculateSize();
+        var total = modelHeadSize + 1 + VarintSize(graphSize) + graphSize + modelTailSize;
         if (total > Array.MaxLength)
             throw new Graph.CompileException($"the model would take {total:N0} bytes; an ONNX file holds at most 2 GiB");
 
         var output = GC.AllocateUninitializedArray<byte>((int)total);
         var position = 0;
-        position += WriteMessage(modelHead, output, position);
+        position += WriteMessage(modelHead, modelHeadSize, output, position);
         output[position++] = GraphTag;
         position += WriteVarint(graphSize, output, position);
-        position += WriteMessage(graphHead, output, position);
+        position += WriteMessage(graphHead, graphHeadSize, output, position);
 
         var regions = new (int Offset, int Length)[headers.Length];
         for (var i = 0; i < headers.Length; i++)
         {
             output[position++] = InitializerTag;
             position += WriteVarint(tensorSizes[i], output, position);
-            position += WriteMessage(headers[i], output, position);
+            position += WriteMessage(headers[i], headerSizes[i], output, position);
             output[position++] = RawDataTag;
             var raw = (int)initializers[i].ByteLength;
             position += WriteVarint(raw, output, position);
             regions[i] = (position, raw);
             position += raw;
         }
-        position += WriteMessage(graphTail, output, position);
-        position += WriteMessage(modelTail, output, position);
+        position += WriteMessage(graphTail, graphTailSize, output, position);
+        position += WriteMessage(modelTail, modelTailSize, output, position);
         if (position != total)
             throw new InvalidOperationException($"model layout mismatch: wrote {position} of {total} bytes");
 
@@ -86,9 +91,8 @@ internal static class ModelWriter
         return output;
     }
 
-    private static int WriteMessage(IMessage message, byte[] output, int position)
+    private static int WriteMessage(IMessage message, int size, byte[] output, int position)
     {
-        var size = message.CalculateSize();
         message.WriteTo(output.AsSpan(position, size));
         return size;
     }

@@ -27,6 +27,7 @@ public sealed class ForwardPass : IDisposable
 
     public ForwardPass(byte[] model, GraphOptimizationLevel optimization = AsWritten, int intraOpThreads = 1)
     {
+        NativeHeap.KeepFreedMemory();
         using var options = new SessionOptions
         {
             IntraOpNumThreads = intraOpThreads,

@@ -13,6 +13,7 @@ public static class LatencyMeter
 {
     public static SessionOptions SessionOptionsFor(int threads, string? profilePrefix = null)
     {
+        NativeHeap.KeepFreedMemory();
         var options = new SessionOptions
         {
             IntraOpNumThreads = threads,
