@@ -17,8 +17,8 @@ public sealed record CalibrationRequest(Skeleton Skeleton, PrimitiveTable Primit
     /// <summary>Fan-ins calibrated up front by default; a node with more inputs is measured on first use.</summary>
     public const int DefaultMaxFanIn = 6;
 
-    /// <summary>Enough points for a line through sizes from small to large cells, at a few seconds each for proxy.</summary>
-    public const int DefaultFitNetworks = 12;
+    /// <summary>Enough points for a steady line through sizes from small to large cells (12 gave lines that moved between calibrations), at under a second each for proxy.</summary>
+    public const int DefaultFitNetworks = 24;
 }
 
 /// <summary>One step of a calibration, for progress displays.</summary>
@@ -123,7 +123,7 @@ public static class Calibration
         }
         if (NetworkFit.Line(points) is not { } line) return null;
         var how = string.Create(CultureInfo.InvariantCulture,
-            $"weighted least squares of {points.Count} sampled networks' time ({meter.QuantileName}) on their units' sum (seed {FitSeed})");
+            $"least squares of the relative error, through 0, of {points.Count} sampled networks' time ({meter.QuantileName}) on their units' sum (seed {FitSeed})");
         return new NetworkFit(Math.Round(line.Intercept, 6), Math.Round(line.Slope, 6), points.Count, Math.Round(line.MeanAbsoluteErrorPercent, 3),
             how, DateTimeOffset.UtcNow, load);
     }
