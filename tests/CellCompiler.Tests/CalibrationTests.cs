@@ -103,6 +103,17 @@ public sealed class CalibrationTests
     }
 
     [Fact]
+    public void TooFewFitNetworksAreRefusedBeforeAnythingIsMeasured()
+    {
+        using var folder = new TempFolder();
+        var table = folder.File("table.json");
+        var result = ProcessRunner.Cellc(["calibrate", .. Small(folder), "--fit-networks", "2", "-o", table], null, null);
+        Assert.Equal(2, result.ExitCode);
+        Assert.Contains("--fit-networks must be 0 or at least 3", result.Stderr);
+        Assert.False(File.Exists(table));
+    }
+
+    [Fact]
     public void CalibrateRefusesADamagedTable()
     {
         using var folder = new TempFolder();

@@ -180,7 +180,7 @@ public sealed class LatencyTableTests
             case "other format": json["format"] = "latency-table/0"; text = json.ToJsonString(); break;
             case "null unit": units.Insert(1, null); text = json.ToJsonString(); break;
             case "falling fit":
-                json["fit"] = JsonNode.Parse("""{"intercept_ms": 0.1, "slope": -1, "networks": 12, "mean_absolute_error_percent": 4, "how": "by hand", "measured": "2026-12-02T00:00:00+00:00", "load": null}""");
+                json["fit"] = JsonNode.Parse("""{"intercept_ms": 0.1, "slope": -1, "networks": 12, "mean_absolute_error_percent": 4, "how": "by hand", "measured": "2026-12-02T00:00:00+00:00", "load": null, "skeleton": "{}"}""");
                 text = json.ToJsonString();
                 break;
             default: throw new ArgumentException(damage);

@@ -84,11 +84,15 @@ public sealed partial class PredictionArithmeticTests
         // The hand sum of 314.0625 ms through predicted = 1.5 ms + 1.2 x sum: 1.5 + 376.875 = 378.375.
         var genotype = GenotypeReader.Parse(HandCounted, "counted", "counted");
         var skeleton = SkeletonPresets.All["proxy"];
-        var fit = new NetworkFit(1.5, 1.2, 12, 3.0, "by hand", DateTimeOffset.UnixEpoch, null);
+        var fit = new NetworkFit(1.5, 1.2, 12, 3.0, "by hand", DateTimeOffset.UnixEpoch, null, skeleton.ToJson());
         var predictor = LatencyPredictor.InMemory(HandTable(skeleton).WithFit(fit));
         Assert.Equal(378.375, predictor.Predict(genotype, Liveness.Analyse(genotype), skeleton));
-        // A line through 0 below zero never predicts a negative time.
-        Assert.Equal(0, new NetworkFit(-2, 1.1, 12, 3.0, "by hand", DateTimeOffset.UnixEpoch, null).Apply(1));
+        // The fit was made for proxy: a table holding full's units too predicts full by the plain sum.
+        var full = SkeletonPresets.All["full"];
+        var both = LatencyPredictor.InMemory(HandTable(skeleton).With(HandTable(full).Units, replace: false).WithFit(fit));
+        Assert.Equal(FrameMs + CellMs * (4 + 2 + 1) * 2, both.Predict(genotype, Liveness.Analyse(genotype), full));
+        // A fit with an intercept below zero (a hand-made table may hold one) never predicts a negative time.
+        Assert.Equal(0, new NetworkFit(-2, 1.1, 12, 3.0, "by hand", DateTimeOffset.UnixEpoch, null, skeleton.ToJson()).Apply(1));
     }
 
     [Fact]

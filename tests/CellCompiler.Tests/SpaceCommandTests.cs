@@ -79,6 +79,18 @@ public sealed class SpaceCommandTests
     }
 
     [Fact]
+    public void ASpacePastTheLargestDoubleIsBoundedNotInfinite()
+    {
+        // One 64-node cell over 8 ops: 8^2016 genotypes, about 10^1820, past double's 1.8e308.
+        using var temp = new TempFolder();
+        var report = Space(temp, """{"format":"space/1","levels":[{"nodes":64,"ops":["none","identity","conv1x1","conv3x3","dwconv3x3","sepconv3x3","maxpool3x3","avgpool3x3"]}]}""",
+            "--samples", "20");
+        var interval = report.GetProperty("distinct_networks_interval").EnumerateArray().Select(e => e.GetDouble()).ToArray();
+        Assert.Equal(double.MaxValue, interval[1]);
+        Assert.True(double.IsFinite(report.GetProperty("distinct_networks").GetDouble()));
+    }
+
+    [Fact]
     public void FiguresAreThoseCompileReportsForTheSameCells()
     {
         // Two genotypes: a 2-node cell holding conv1x1 or conv3x3. Every live sample is one of them,

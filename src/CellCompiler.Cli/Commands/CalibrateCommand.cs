@@ -42,9 +42,15 @@ public static class CalibrateCommand
         var fitNetworks = new Option<int>("--fit-networks")
         {
             HelpName = "K",
-            Description = $"Measure K whole sampled networks and fit the line from their units' sum to their time (default {CalibrationRequest.DefaultFitNetworks}; 0: predict the plain sum).",
+            Description = $"Measure K whole sampled networks and fit the ratio of their time to their units' sum (default {CalibrationRequest.DefaultFitNetworks}, at least {NetworkFit.MinNetworks}; 0: predict the plain sum).",
             DefaultValueFactory = _ => CalibrationRequest.DefaultFitNetworks,
-            CustomParser = r => HumanNumber.WholeNumber(0, 1000)(r),
+            CustomParser = r =>
+            {
+                var k = HumanNumber.WholeNumber(0, 1000)(r);
+                if (k is > 0 and < NetworkFit.MinNetworks)
+                    r.AddError($"--fit-networks must be 0 or at least {NetworkFit.MinNetworks} (a ratio from fewer networks is not fitted), found {k}");
+                return k;
+            },
         };
         var skeleton = new SkeletonOptions();
         var settings = new CompileSettingsOptions();
@@ -76,10 +82,10 @@ public static class CalibrateCommand
                 $"  ({Formatting.Duration(step.Elapsed)} elapsed, about {Formatting.Duration(step.Remaining)} left{LoadNote(step.Load, ", load ")})"));
             var c = result.Conditions;
             if (result.Fit is { } fit)
-                Console.Out.WriteLine($"Fitted to {Wording.Counted(fit.Networks, "whole network")}: predicted = {Wording.Significant(fit.InterceptMs)} ms + " +
+                Console.Out.WriteLine($"Fitted to {Wording.Counted(fit.Networks, "whole network")}: predicted = " +
                                       $"{fit.Slope.ToString("0.000", CultureInfo.InvariantCulture)} x sum of units (mean error {Wording.Significant(fit.MeanAbsoluteErrorPercent)}% on those networks).");
             else if (request.FitNetworks > 0)
-                Console.Out.WriteLine("No whole-network fit: too few networks could be measured or no rising line fits them; predictions are the plain sum of units.");
+                Console.Out.WriteLine("No whole-network fit: too few networks could be measured; predictions are the plain sum of units.");
             Console.Out.WriteLine($"Wrote {TerminalText.Safe(path)}: {Wording.Counted(result.Count, "unit")} in all, for {TerminalText.Safe(c.Processor)}, " +
                                   $"ONNX Runtime {c.OnnxRuntime}, {Wording.Counted(c.Threads, "thread")}, opset {c.Opset}.");
             Console.Out.WriteLine("Predictions from this table hold only on this machine model, with this ONNX Runtime version, thread count and " +

@@ -17,7 +17,7 @@ public sealed record CalibrationRequest(Skeleton Skeleton, PrimitiveTable Primit
     /// <summary>Fan-ins calibrated up front by default; a node with more inputs is measured on first use.</summary>
     public const int DefaultMaxFanIn = 6;
 
-    /// <summary>Enough points for a steady line through sizes from small to large cells (12 gave lines that moved between calibrations), at under a second each for proxy.</summary>
+    /// <summary>Enough points for a steady ratio over sizes from small to large cells (12 gave lines that moved between calibrations), at under a second each for proxy.</summary>
     public const int DefaultFitNetworks = 24;
 }
 
@@ -68,7 +68,10 @@ public static class Calibration
             table = LatencyTableFile.Update(path, current =>
             {
                 if (current is not null) LatencyPredictor.RequireConditions(current, here, path);
-                return (current ?? new LatencyTable(here, [])).With(measured.Select(m => new KeyValuePair<string, UnitTime>(m.Unit.Key, m.Time)), replace: true);
+                // An earlier fit does not hold for units measured again: it goes with the first of them (an interrupted
+                // calibration then leaves no stale fit), and the fit of this calibration is written at its end.
+                return (current ?? new LatencyTable(here, [])).With(measured.Select(m => new KeyValuePair<string, UnitTime>(m.Unit.Key, m.Time)), replace: true)
+                    .WithFit(null);
             });
             foreach (var (unit, time) in measured)
                 progress(new CalibrationStep(++done, plan.Count + Math.Max(0, request.FitNetworks), unit.Key, time.Ms, clock.Elapsed, time.Load));
@@ -78,7 +81,6 @@ public static class Calibration
         foreach (var unit in plan.Where(u => u is PrimitiveUnit or MergeUnit))
             Store([(unit, meter.MeasureChain(unit))]);
 
-        // The fit of an earlier calibration does not hold for units measured again: replace it, or remove it.
         var fit = Fit(table!, request, frame, meter, (label, ms, load) =>
             progress(new CalibrationStep(++done, plan.Count + request.FitNetworks, label, ms, clock.Elapsed, load)));
         table = LatencyTableFile.Update(path, current => (current ?? table!).WithFit(fit));
@@ -90,11 +92,11 @@ public static class Calibration
 
     /// <summary>
     /// Measures <see cref="CalibrationRequest.FitNetworks"/> whole networks of the skeleton and fits the
-    /// line from their units' sum to their measured time. The networks are sampled as `cellc sample`
-    /// does by default (4-node motifs, six of them, under a 5-node cell; fewer nodes when
+    /// ratio of their measured time to their units' sum. The networks are sampled as `cellc sample`
+    /// does with --levels 4,5 --motifs 6,1 (4-node motifs, six of them, under a 5-node cell; fewer nodes when
     /// --max-fan-in is under 4) over the calibrated primitives and identity; dead cells, networks that cannot be formed and networks with units the table lacks
     /// are passed over. Null when fewer than <see cref="NetworkFit.MinNetworks"/> were measured or no
-    /// rising line fits them.
+    /// positive ratio fits them.
     /// </summary>
     public static NetworkFit? Fit(LatencyTable table, CalibrationRequest request, NetworkFrame frame, UnitMeter meter,
         Action<string, double, double?> progress)
@@ -125,6 +127,6 @@ public static class Calibration
         var how = string.Create(CultureInfo.InvariantCulture,
             $"least squares of the relative error, through 0, of {points.Count} sampled networks' time ({meter.QuantileName}) on their units' sum (seed {FitSeed})");
         return new NetworkFit(Math.Round(line.Intercept, 6), Math.Round(line.Slope, 6), points.Count, Math.Round(line.MeanAbsoluteErrorPercent, 3),
-            how, DateTimeOffset.UtcNow, load);
+            how, DateTimeOffset.UtcNow, load, request.Skeleton.ToJson());
     }
 }

@@ -74,13 +74,13 @@ public sealed class LatencyPredictor
 
     /// <summary>
     /// The predicted latency in ms: the sum of the units' times, through the table's whole-network
-    /// fit when it has one. Every unit must be in the table (see <see cref="MeasureMissing"/>).
+    /// fit when it has one for this skeleton (one table may hold several skeletons' units, and one fit). Every unit must be in the table (see <see cref="MeasureMissing"/>).
     /// </summary>
     public double Sum(UnitCounts counts)
     {
         var table = _table;
         var ms = UnitSum(table, counts);
-        return Math.Round(table.Fit is { } fit ? fit.Apply(ms) : ms, 4);
+        return Math.Round(table.Fit is { } fit && fit.Skeleton == counts.SkeletonJson ? fit.Apply(ms) : ms, 4);
     }
 
     /// <summary>The plain sum of the units' times (what the fit is fitted to).</summary>

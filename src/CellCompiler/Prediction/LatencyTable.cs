@@ -3,7 +3,7 @@ using System.Collections.Concurrent;
 namespace CellCompiler.Prediction;
 
 /// <summary>
-/// How one unit's time was found: its p50 share in ms at batch 1, how it was measured, when, and the
+/// How one unit's time was found: its share in ms at batch 1 (at the calibration's quantile), how it was measured, when, and the
 /// machine's 1-minute load average then (background load distorts calibration; the table keeps it).
 /// </summary>
 public sealed record UnitTime(double Ms, string How, DateTimeOffset Measured, double? Load);

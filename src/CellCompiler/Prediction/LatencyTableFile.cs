@@ -127,7 +127,7 @@ public static class LatencyTableFile
             throw Bad(origin, "fit.networks", $"must be at least {NetworkFit.MinNetworks}, found {fit.Networks}");
         if (!double.IsFinite(fit.MeanAbsoluteErrorPercent) || fit.MeanAbsoluteErrorPercent < 0)
             throw Bad(origin, "fit.mean_absolute_error_percent", "must be a finite number of at least 0");
-        return new NetworkFit(fit.InterceptMs, fit.Slope, fit.Networks, fit.MeanAbsoluteErrorPercent, fit.How, fit.Measured, fit.Load);
+        return new NetworkFit(fit.InterceptMs, fit.Slope, fit.Networks, fit.MeanAbsoluteErrorPercent, fit.How, fit.Measured, fit.Load, fit.Skeleton);
     }
 
     private static TableDocument ToDocument(LatencyTable table)
@@ -136,7 +136,7 @@ public static class LatencyTableFile
         return new TableDocument(FormatTag,
             new ConditionsDocument(c.Processor, c.OnnxRuntime, c.Threads, c.Session, c.Opset, 1),
             table.Units.Select(kv => new UnitDocument(kv.Key, kv.Value.Ms, kv.Value.How, kv.Value.Measured, kv.Value.Load)).ToList(),
-            table.Fit is { } f ? new FitDocument(f.InterceptMs, f.Slope, f.Networks, f.MeanAbsoluteErrorPercent, f.How, f.Measured, f.Load) : null);
+            table.Fit is { } f ? new FitDocument(f.InterceptMs, f.Slope, f.Networks, f.MeanAbsoluteErrorPercent, f.How, f.Measured, f.Load, f.Skeleton) : null);
     }
 
     /// <summary>Syntax first, so that a file cut short is told apart from a wrong field.</summary>
@@ -182,7 +182,7 @@ internal sealed record TableDocument(string Format, ConditionsDocument Condition
     [property: JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)] FitDocument? Fit = null);
 
 internal sealed record FitDocument(double InterceptMs, double Slope, int Networks, double MeanAbsoluteErrorPercent, string How,
-    DateTimeOffset Measured, double? Load);
+    DateTimeOffset Measured, double? Load, string Skeleton);
 
 internal sealed record ConditionsDocument(string Processor, string Onnxruntime, int Threads, string Session, int Opset, int Batch);
 

@@ -6,13 +6,14 @@ namespace CellCompiler.Prediction;
 /// chains whose few weights stay in the core's caches; a whole network streams more weights and
 /// activations than the caches hold, so the sum reads low, and more so the larger the network
 /// (README, measured). A ratio fitted to whole networks of the skeleton, timed like the units (the
-/// low quantile of interleaved runs), corrects that to first order. Calibration fits the line
+/// low quantile of their runs, over several rounds), corrects that to first order. Calibration fits the line
 /// through 0 (<see cref="Line"/>); a table may hold an intercept all the same, and it is applied.
 /// </summary>
 /// <param name="Networks">How many whole networks the line was fitted to.</param>
 /// <param name="MeanAbsoluteErrorPercent">The fitted line's mean absolute error on those networks, in percent of their measured time.</param>
+/// <param name="Skeleton">The skeleton/1 JSON of the skeleton fitted: the ratio differs between skeletons (README), so it applies to no other.</param>
 public sealed record NetworkFit(double InterceptMs, double Slope, int Networks, double MeanAbsoluteErrorPercent, string How,
-    DateTimeOffset Measured, double? Load)
+    DateTimeOffset Measured, double? Load, string Skeleton)
 {
     /// <summary>Fewer networks than this fit nothing: the table then predicts the plain sum.</summary>
     public const int MinNetworks = 3;

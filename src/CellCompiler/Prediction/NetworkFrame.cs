@@ -14,6 +14,9 @@ namespace CellCompiler.Prediction;
 /// </summary>
 public sealed record NetworkFrame(Skeleton Skeleton, IReadOnlyList<Site> Stages, StemUnit Stem, IReadOnlyList<ReductionUnit> Reductions, HeadUnit Head)
 {
+    /// <summary>The skeleton as skeleton/1 JSON: what a table's <see cref="NetworkFit"/> was fitted for.</summary>
+    public string SkeletonJson { get; } = Skeleton.ToJson();
+
     /// <summary>The units of the frame, in network order, with the per-run unit last.</summary>
     public IReadOnlyList<LatencyUnit> Units => [Stem, .. Reductions, Head, RunUnit.Instance];
 

@@ -8,7 +8,8 @@ namespace CellCompiler.Prediction;
 /// units once each, and each stage's cell census times the stage's cell count at the stage's site.
 /// Counted from the genotype alone, without compiling it.
 /// </summary>
-public sealed record UnitCounts(IReadOnlyList<(LatencyUnit Unit, long Count)> Items)
+/// <param name="SkeletonJson">The skeleton the units were counted for (a fit applies only to its own skeleton).</param>
+public sealed record UnitCounts(IReadOnlyList<(LatencyUnit Unit, long Count)> Items, string SkeletonJson)
 {
     public static UnitCounts Of(Genotype genotype, Liveness liveness, NetworkFrame frame)
     {
@@ -25,6 +26,6 @@ public sealed record UnitCounts(IReadOnlyList<(LatencyUnit Unit, long Count)> It
             foreach (var (fanIn, n) in census.Merges)
                 items.Add((new MergeUnit(skeleton.Merge, fanIn, site), checked(n * cells)));
         }
-        return new UnitCounts(items);
+        return new UnitCounts(items, frame.SkeletonJson);
     }
 }

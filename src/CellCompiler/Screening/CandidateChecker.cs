@@ -79,8 +79,8 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             };
         if (predictionFailure is not null)
             return Failed(candidate, hashes, CheckStatus.Broken,
-                $"latency prediction failed while measuring units missing from the table: {predictionFailure.ReplaceLineEndings(" ")}",
-                "latency prediction failed", warnings, clock);
+                $"latency prediction failed: {predictionFailure.ReplaceLineEndings(" ")}",
+                "latency prediction failed", warnings, clock, cached) with { Notes = notes };
 
         var figures = evaluation.Figures!;
         var trainMemory = TrainMemory(evaluation);
@@ -152,14 +152,16 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     /// <summary>
     /// The predicted latency of a live cell when there is a table, measuring the units it lacks first
     /// (with the machine to themselves, as a latency measurement). A failed measurement is returned,
-    /// not thrown: a candidate that does not compile reports that instead.
+    /// not thrown: a candidate that does not compile reports that instead. The units of a live cell
+    /// that then fails to compile are measured all the same (a known cost: the table keeps them).
     /// </summary>
     private (double? Predicted, string? Failure) Predict(Genotype genotype, Liveness liveness)
     {
         if (_predictor is null || !liveness.Cell(genotype).OutputIsLive) return (null, null);
         try
         {
-            var units = _predictor.Count(genotype, liveness, options.Skeleton);
+            // Counting walks the whole cell: shared work, kept out of other workers' latency measurements.
+            var units = _gate.Shared(() => _predictor.Count(genotype, liveness, options.Skeleton));
             var missing = _predictor.Missing(units);
             if (missing.Count > 0) _gate.Exclusive(() => { _predictor.MeasureMissing(missing, options.Skeleton); return 0; });
             return (_predictor.Sum(units), null);

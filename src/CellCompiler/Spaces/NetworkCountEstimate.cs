@@ -28,6 +28,9 @@ public sealed record NetworkCountEstimate(Bounded Networks, ClassEstimate Chao1,
         var chao = Spaces.Chao1.Estimate(frequencies, z);
         var missing = GoodTuring.Estimate(chao.Sample, chao.Singletons, chao.Doubletons, z);
         var upper = Math.Min(liveGenotypesUpper, chao.Observed + missing.Upper * liveGenotypesUpper);
+        // With no singleton and no doubleton the missing mass's normal interval has no width, though a small
+        // sample can still have missed networks: then the upper end is Chao1's own.
+        if (missing.Upper == missing.Lower) upper = Math.Max(upper, Math.Min(liveGenotypesUpper, chao.Upper));
         upper = Math.Max(upper, chao.Observed);
         var maybeAllSeen = missing.Lower <= 0;
         var value = Math.Min(chao.Estimate, upper);

@@ -82,7 +82,8 @@ public static class SpaceSurveyor
         else
         {
             dead = Wilson(sample.DeadCount, sample.Count);
-            estimate = NetworkCountEstimate.From(frequencies, (double)space.Genotypes * (1 - dead.Lower));
+            // A space past 1.8e308 genotypes converts to infinity: the bound stays the largest finite double instead.
+            estimate = NetworkCountEstimate.From(frequencies, Math.Min(double.MaxValue, (double)space.Genotypes * (1 - dead.Lower)));
             networks = estimate.Networks;
         }
         return new SpaceSurvey(space, skeleton, options, exact, enumeration, dead, networks, estimate,
