@@ -58,14 +58,8 @@ public static partial class GenotypeReader
         var (declared, table) = PrimitiveDeclarations.ReadField(root, problems);
         if (table is null) return null;
 
-        if (!root.Has("levels"))
-        {
-            problems.Add(root.Error("missing required field 'levels'"));
-            return null;
-        }
-        var levelsWalk = root.Property("levels");
-        var levelCount = 0;
-        if (!problems.Try(() => levelCount = levelsWalk.RequireArray(1, Limits.MaxLevels, "levels"))) return null;
+        if (LevelsField(root, problems) is not { } levelsField) return null;
+        var (levelsWalk, levelCount) = levelsField;
 
         var levels = new List<Level>(levelCount);
         for (var k = 0; k < levelCount; k++)
@@ -77,6 +71,22 @@ public static partial class GenotypeReader
         }
         CheckDeclarationNames(root, declared, levels, problems);
         return new Genotype(name, levels, id, declared.Count == 0 ? null : table, meta);
+    }
+
+    /// <summary>
+    /// The required `levels` array of a genotype or a space document, 1 to <see cref="Limits.MaxLevels"/>
+    /// long: its walk and length, or null with the problem recorded.
+    /// </summary>
+    internal static (JsonWalk Walk, int Count)? LevelsField(JsonWalk root, ProblemList problems)
+    {
+        if (!root.Has("levels"))
+        {
+            problems.Add(root.Error("missing required field 'levels'"));
+            return null;
+        }
+        var walk = root.Property("levels");
+        var count = 0;
+        return problems.Try(() => count = walk.RequireArray(1, Limits.MaxLevels, "levels")) ? (walk, count) : null;
     }
 
     private static string ReadLabel(JsonWalk walk, string what)

@@ -56,14 +56,8 @@ public static class SpaceReader
         var (declared, table) = PrimitiveDeclarations.ReadField(root, problems);
         if (table is null) return null;
 
-        if (!root.Has("levels"))
-        {
-            problems.Add(root.Error("missing required field 'levels'"));
-            return null;
-        }
-        var levelsWalk = root.Property("levels");
-        var levelCount = 0;
-        if (!problems.Try(() => levelCount = levelsWalk.RequireArray(1, Limits.MaxLevels, "levels"))) return null;
+        if (GenotypeReader.LevelsField(root, problems) is not { } levelsField) return null;
+        var (levelsWalk, levelCount) = levelsField;
         var levels = new List<SpaceLevel>(levelCount);
         for (var k = 0; k < levelCount; k++)
             if (ReadLevel(levelsWalk.Item(k), k, levelCount, table, problems) is { } level) levels.Add(level);
