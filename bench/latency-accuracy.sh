@@ -10,6 +10,10 @@
 #   PRESETS=proxy COUNT=100 bench/latency-accuracy.sh
 #   FULL_COUNT=50 bench/latency-accuracy.sh        # the first 50 of each population for full
 #   KEEP=/tmp/acc bench/latency-accuracy.sh        # keep tables, populations and results there
+#   REPEAT=0 bench/latency-accuracy.sh             # skip the second measurement of each population
+#
+# Each population is measured twice (REPEAT=1, the default): the second measurement against the
+# first is the machine's own reproducibility, the ceiling of any prediction's agreement with one.
 #
 # Run it on a quiet machine: the load average is logged before and after every step (conditions.txt),
 # and measurements taken under load mislead both the table and the measured side.
@@ -64,6 +68,12 @@ for preset in $presets; do
       log "check $preset $merge $vocabulary ($n candidates)"
       cellc check "$work/$vocabulary-$n.jsonl" --skeleton "$preset" --merge "$merge" --latency "${timing[@]}" \
         --latency-table "$table" --no-cache --jobs 1 --out "$out" >/dev/null 2>"$work/check-$preset-$merge-$vocabulary.log" || true
+      if [[ ${REPEAT:-1} == 1 ]]; then
+        log "check $preset $merge $vocabulary again ($n candidates, measured only)"
+        cellc check "$work/$vocabulary-$n.jsonl" --skeleton "$preset" --merge "$merge" --latency "${timing[@]}" \
+          --no-cache --jobs 1 --out "$out.again" >/dev/null 2>>"$work/check-$preset-$merge-$vocabulary.log" || true
+        out="$out+$out.again"
+      fi
       results+=("$preset $merge $vocabulary=$out")
     done
   done

@@ -24,6 +24,7 @@ public sealed class CalibrationTests
     /// <summary>Written out by hand from contract sections 2, 3 and 3.1: the frame, the six built-ins, two declarations, merges of 2 and 3.</summary>
     private static readonly string[] ExpectedUnits =
     [
+        "anchor conv3x3/4 @32x16x16",
         "head 8x8x8->10",
         "merge concat/2 @8x8x8",
         "merge concat/3 @8x8x8",
@@ -47,10 +48,10 @@ public sealed class CalibrationTests
         var result = ProcessRunner.Cellc(["calibrate", .. Small(folder), "--max-fan-in", "3", "--primitives", Declarations(folder),
             "--fit-networks", "3", "-o", table], null, null);
         Assert.True(result.ExitCode == 0, result.Stderr);
-        // 13 units, then the 3 whole networks of the fit.
-        Assert.Contains("[1/16]", result.Stderr);
-        Assert.Contains("[13/16] merge concat/3", result.Stderr);
-        Assert.Contains("[16/16] network 3 of the fit", result.Stderr);
+        // The anchor, 13 units, then the 3 whole networks of the fit.
+        Assert.Contains("[1/17] anchor conv3x3/4 @32x16x16", result.Stderr);
+        Assert.Contains("[14/17] merge concat/3", result.Stderr);
+        Assert.Contains("[17/17] network 3 of the fit", result.Stderr);
         Assert.Contains("hold only", result.Stdout);
         Assert.Contains("Fitted to 3 whole networks", result.Stdout);
 
@@ -94,6 +95,8 @@ public sealed class CalibrationTests
         Assert.Contains("merge concat/2 @8x8x8", both.Units.Keys);
         Assert.Contains("merge sum/2 @8x8x8", both.Units.Keys);
         Assert.Equal(concat.Count + 1, both.Count);
+        // The table keeps its first anchor: the concat units, not measured again, are on that scale.
+        Assert.Equal(concat.Units["anchor conv3x3/4 @32x16x16"], both.Units["anchor conv3x3/4 @32x16x16"]);
 
         var before = File.ReadAllText(table);
         var threads = ProcessRunner.Cellc(["calibrate", .. Small(folder), "--threads", "2", "-o", table], null, null);

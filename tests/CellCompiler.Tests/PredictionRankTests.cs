@@ -37,7 +37,7 @@ public sealed class PredictionRankTests
         var ms = new[] { small, medium, large }.Select(g => predictor.Predict(g, Liveness.Analyse(g), skeleton)).ToArray();
         Assert.True(ms[0] > 0, $"a prediction is a positive time: {ms[0]}");
         Assert.True(ms[0] < ms[1] && ms[1] < ms[2], $"predicted {string.Join(" < ", ms)} ms should rise with the network's size");
-        // Every unit the three networks hold is now in the table: the frame's, the two primitives' and the merges' at three sites.
-        Assert.Equal(5 + 3 * (2 + 6), predictor.Table.Count);
+        // Every unit the three networks hold is now in the table: the frame's, the two primitives' and the merges' at three sites; and the anchor.
+        Assert.Equal(5 + 3 * (2 + 6) + 1, predictor.Table.Count);
     }
 }

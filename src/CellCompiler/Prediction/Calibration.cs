@@ -55,10 +55,13 @@ public static class Calibration
     public static LatencyTable Run(string path, CalibrationRequest request, Action<CalibrationStep> progress)
     {
         var here = TableConditions.Here(request.Threads, request.Opset);
-        if (File.Exists(path)) LatencyPredictor.RequireConditions(LatencyTableFile.Read(path), here, path);
+        var existing = File.Exists(path) ? LatencyTableFile.Read(path) : null;
+        if (existing is not null) LatencyPredictor.RequireConditions(existing, here, path);
         var frame = NetworkFrame.Of(request.Skeleton);
         var plan = Plan(request);
-        var meter = new UnitMeter(request.Threads, request.Opset);
+        // A table keeps its first anchor for good: its other entries, of this calibration or not, are on that scale.
+        var meter = new UnitMeter(request.Threads, request.Opset, existing?.Find(AnchorUnit.Instance)?.Ms);
+        var steps = plan.Count + Math.Max(0, request.FitNetworks) + (existing?.Contains(AnchorUnit.Instance) == true ? 0 : 1);
         var clock = Stopwatch.StartNew();
         LatencyTable? table = null;
         var done = 0;
@@ -74,15 +77,17 @@ public static class Calibration
                     .WithFit(null);
             });
             foreach (var (unit, time) in measured)
-                progress(new CalibrationStep(++done, plan.Count + Math.Max(0, request.FitNetworks), unit.Key, time.Ms, clock.Elapsed, time.Load));
+                progress(new CalibrationStep(++done, steps, unit.Key, time.Ms, clock.Elapsed, time.Load));
         }
 
+        meter.AnchorMs();
+        if (meter.NewAnchor is { } anchor) Store([(AnchorUnit.Instance, anchor)]);
         Store(meter.MeasureFrame(frame));
         foreach (var unit in plan.Where(u => u is PrimitiveUnit or MergeUnit))
             Store([(unit, meter.MeasureChain(unit))]);
 
         var fit = Fit(table!, request, frame, meter, (label, ms, load) =>
-            progress(new CalibrationStep(++done, plan.Count + request.FitNetworks, label, ms, clock.Elapsed, load)));
+            progress(new CalibrationStep(++done, steps, label, ms, clock.Elapsed, load)));
         table = LatencyTableFile.Update(path, current => (current ?? table!).WithFit(fit));
         return table;
     }
@@ -125,7 +130,7 @@ public static class Calibration
         }
         if (NetworkFit.Line(points) is not { } line) return null;
         var how = string.Create(CultureInfo.InvariantCulture,
-            $"least squares of the relative error, through 0, of {points.Count} sampled networks' time ({meter.QuantileName}) on their units' sum (seed {FitSeed})");
+            $"least squares of the relative error, through 0, of {points.Count} sampled networks' time ({meter.NetworkQuantileName}) on their units' sum (seed {FitSeed})");
         return new NetworkFit(Math.Round(line.Intercept, 6), Math.Round(line.Slope, 6), points.Count, Math.Round(line.MeanAbsoluteErrorPercent, 3),
             how, DateTimeOffset.UtcNow, load, request.Skeleton.ToJson());
     }

@@ -44,12 +44,15 @@ public sealed class LatencyPredictor
             throw new InputException(path, "", "no such latency table; make one on this machine with cellc calibrate -o " + path);
         var table = LatencyTableFile.Read(path);
         RequireConditions(table, here, path);
-        return new LatencyPredictor(table, path, new UnitMeter(here.Threads, here.Opset), warning);
+        return new LatencyPredictor(table, path, MeterFor(table, here.Threads, here.Opset), warning);
     }
 
     /// <summary>A predictor over a table in memory only (units measured on first use are not saved).</summary>
     public static LatencyPredictor InMemory(LatencyTable table) =>
-        new(table, null, new UnitMeter(table.Conditions.Threads, table.Conditions.Opset), null);
+        new(table, null, MeterFor(table, table.Conditions.Threads, table.Conditions.Opset), null);
+
+    /// <summary>Units measured on first use are put on the table's scale by its anchor (a table from before anchors gets one then).</summary>
+    private static UnitMeter MeterFor(LatencyTable table, int threads, int opset) => new(threads, opset, table.Find(AnchorUnit.Instance)?.Ms);
 
     public static void RequireConditions(LatencyTable table, TableConditions here, string path)
     {
@@ -133,6 +136,7 @@ public sealed class LatencyPredictor
                         throw new InvalidOperationException($"unknown unit {unit.GetType().Name}");
                 }
             }
+            if (_meter.NewAnchor is { } anchor && !_table.Contains(AnchorUnit.Instance)) measured.Add(new(AnchorUnit.Instance.Key, anchor));
             Save(measured);
         }
     }

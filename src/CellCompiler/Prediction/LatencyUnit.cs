@@ -29,7 +29,7 @@ public abstract record LatencyUnit
     public abstract string Key { get; }
 
     /// <summary>The first word of every key: which kind of unit it is.</summary>
-    public static readonly IReadOnlyList<string> KindWords = ["primitive", "merge", "stem", "reduce", "head", "run"];
+    public static readonly IReadOnlyList<string> KindWords = ["primitive", "merge", "stem", "reduce", "head", "run", "anchor"];
 
     public sealed override string ToString() => Key;
 }
@@ -71,4 +71,22 @@ public sealed record RunUnit : LatencyUnit
     public static readonly RunUnit Instance = new();
 
     public override string Key => "run";
+}
+
+/// <summary>
+/// The reference probe every measurement is timed beside (<see cref="UnitMeter"/>): a chain of
+/// <see cref="Copies"/> conv3x3 at a fixed site, the same for every skeleton. Its entry is the time it
+/// took when the table was first made; no candidate contains it. A virtual machine's speed moved by
+/// 25 to 40% within a minute here, so each unit is scaled by how much faster or slower the anchor ran
+/// at that moment than at the table's making, which keeps every entry on one scale.
+/// </summary>
+public sealed record AnchorUnit : LatencyUnit
+{
+    public static readonly AnchorUnit Instance = new();
+
+    public const int Copies = 4;
+
+    public static readonly Site At = new(32, 16, 16);
+
+    public override string Key => string.Create(CultureInfo.InvariantCulture, $"anchor conv3x3/{Copies} @{At}");
 }

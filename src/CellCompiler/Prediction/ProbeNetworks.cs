@@ -52,6 +52,10 @@ public static class ProbeNetworks
         return Emit(layers.Finish(), opset);
     }
 
+    /// <summary>The anchor every probe is timed beside: <see cref="AnchorUnit.Copies"/> conv3x3 after the prelude at <see cref="AnchorUnit.At"/>.</summary>
+    public static byte[] Anchor(int opset) =>
+        PrimitiveChain(new PrimitiveUnit(BuiltinPrimitives.Find(Primitives.Conv3x3)!, AnchorUnit.At), AnchorUnit.Copies, opset);
+
     /// <summary>The skeleton without cells: stem, reductions, head (see <see cref="NetworkFrame"/>).</summary>
     public static byte[] Frame(Skeleton skeleton, int opset) => Emit(NetworkFrame.Build(skeleton, opset).Network, opset);
 

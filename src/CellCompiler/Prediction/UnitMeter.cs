@@ -5,26 +5,60 @@ using CellCompiler.Runtime;
 namespace CellCompiler.Prediction;
 
 /// <summary>
-/// How calibration times a probe: <see cref="Rounds"/> rounds, each timing every probe of a unit one
-/// after the other (<see cref="Warmup"/> untimed runs, then <see cref="Runs"/> timed runs), so that
-/// all see the same background. A probe's time is the <see cref="Quantile"/> of all its timed runs:
-/// a low quantile rather than the median, because a run that another program interrupts only ever
-/// gets slower, so on a busy machine the low quantile still reads the undisturbed time (on a quiet
-/// machine the two differ by a few percent; see the README's accuracy figures). Whole networks for
-/// the fit (<see cref="NetworkFit"/>) get <see cref="NetworkRounds"/> rounds at the same quantile.
+/// How calibration times a probe: in <see cref="Sessions"/> fresh ONNX Runtime sessions, each for
+/// <see cref="Rounds"/> rounds that time every probe of a unit one after the other
+/// (<see cref="Warmup"/> untimed runs, then <see cref="Runs"/> timed runs), so that all see the same
+/// background. Within a session a probe's time is the <see cref="Quantile"/> of its timed runs: a low
+/// quantile rather than the median, because a run that another program interrupts only ever gets
+/// slower. Across sessions it is the median: on this project's virtual machine the same model timed
+/// in fresh sessions of one process read up to 20% apart (a session's buffers land differently in
+/// memory), so one session's figure can be far off and a median of three is not. Whole networks for
+/// the fit (<see cref="NetworkFit"/>) get <see cref="NetworkSessions"/> sessions of one round each,
+/// read at <see cref="NetworkQuantile"/>, the median: the fit maps the units' undisturbed sum onto
+/// the statistic `bench` and `check --latency` report (their p50), so a prediction estimates that
+/// figure and not a faster one (a network's p50 ran 5 to 9% above its fastest run here).
 /// </summary>
-public sealed record CalibrationSettings(int Rounds = 7, int Warmup = 5, int Runs = 40, int Copies = 8, double Quantile = 0.1, int NetworkRounds = 3)
+public sealed record CalibrationSettings(int Sessions = 3, int Rounds = 3, int Warmup = 5, int Runs = 40, int Copies = 8, double Quantile = 0.1,
+    int NetworkSessions = 3, double NetworkQuantile = 0.5)
 {
     public static readonly CalibrationSettings Default = new();
 }
 
-/// <summary>Measures units on ONNX Runtime under the session settings of `bench` (<see cref="LatencyMeter"/>).</summary>
-public sealed class UnitMeter(int threads, int opset, CalibrationSettings? settings = null)
+/// <summary>
+/// Measures units on ONNX Runtime under the session settings of `bench` (<see cref="LatencyMeter"/>).
+/// Every probe is timed beside the anchor (<see cref="AnchorUnit"/>) in the same sessions and rounds,
+/// and scaled by the anchor's time in the table (<paramref name="anchorMs"/>) over its time now, so
+/// that units measured minutes or days apart, while the machine ran faster or slower, share one scale.
+/// Without a table's anchor the meter times the anchor first and that becomes the reference
+/// (<see cref="NewAnchor"/>, to be stored in the table).
+/// </summary>
+public sealed class UnitMeter(int threads, int opset, double? anchorMs = null, CalibrationSettings? settings = null)
 {
     private readonly CalibrationSettings _settings = settings ?? CalibrationSettings.Default;
+    private readonly Lazy<byte[]> _anchor = new(() => ProbeNetworks.Anchor(opset));
+    private double? _anchorMs = anchorMs;
 
     public int Threads => threads;
     public int Opset => opset;
+
+    /// <summary>The anchor's reference time when this meter measured it (the table had none); null otherwise.</summary>
+    public UnitTime? NewAnchor { get; private set; }
+
+    /// <summary>
+    /// The anchor's reference time: the table's, or measured now (3 times the usual rounds, so that the
+    /// reference is steady) when there is none.
+    /// </summary>
+    public double AnchorMs()
+    {
+        if (_anchorMs is { } known) return known;
+        var load = SystemLoad.OneMinute();
+        var ms = Round(TimeUnanchored([_anchor.Value], _settings.Sessions, 3 * _settings.Rounds, _settings.Quantile)[0]);
+        NewAnchor = new UnitTime(ms, string.Create(CultureInfo.InvariantCulture,
+            $"{Quantile} of {3 * _settings.Rounds} rounds x {_settings.Runs} runs, median of {_settings.Sessions} sessions; the reference every unit is scaled to"),
+            DateTimeOffset.UtcNow, load);
+        _anchorMs = ms;
+        return ms;
+    }
 
     /// <summary>A primitive's or a merge's time: the difference between a long and a short chain of it, per extra copy.</summary>
     public UnitTime MeasureChain(LatencyUnit unit)
@@ -41,7 +75,7 @@ public sealed class UnitMeter(int threads, int opset, CalibrationSettings? setti
         var times = Time([shortBytes, longBytes]);
         var ms = (times[1] - times[0]) / copies;
         var how = string.Create(CultureInfo.InvariantCulture,
-            $"chains of {shortLength} and {shortLength + copies}: {Quantile} of {Ms(times[0])} and {Ms(times[1])} ms");
+            $"chains of {shortLength} and {shortLength + copies}: {Quantile} of {Ms(times[0])} and {Ms(times[1])} ms (median of {_settings.Sessions} sessions)");
         return new UnitTime(Round(Math.Max(0, ms)), how, DateTimeOffset.UtcNow, load);
     }
 
@@ -56,7 +90,7 @@ public sealed class UnitMeter(int threads, int opset, CalibrationSettings? setti
         var load = SystemLoad.OneMinute();
         var total = Time([bytes])[0];
 
-        var profile = KernelProfile.Collect(bytes, 1, threads, _settings.Warmup, _settings.Runs * _settings.Rounds);
+        var profile = KernelProfile.Collect(bytes, 1, threads, _settings.Warmup, _settings.Runs * _settings.Rounds * _settings.Sessions);
         var kernelMs = new Dictionary<NetworkPart, double>();
         foreach (var (node, micros) in profile.MicrosecondsByNode)
         {
@@ -82,30 +116,68 @@ public sealed class UnitMeter(int threads, int opset, CalibrationSettings? setti
     }
 
     /// <summary>
-    /// A whole network's time at batch 1 over <see cref="CalibrationSettings.NetworkRounds"/> rounds of
-    /// the usual warm-up and timed runs, at the units' low quantile: like them, the undisturbed time.
+    /// A whole network's time at batch 1: the median over <see cref="CalibrationSettings.NetworkSessions"/>
+    /// sessions of one round of the usual warm-up and timed runs, each read at <see cref="CalibrationSettings.NetworkQuantile"/>.
     /// </summary>
-    public double MeasureNetwork(byte[] model) => Time([model], _settings.NetworkRounds, _settings.Quantile)[0];
+    public double MeasureNetwork(byte[] model) => Time([model], _settings.NetworkSessions, 1, _settings.NetworkQuantile)[0];
 
-    /// <summary>The quantile probes are timed at, in words ("10th percentile").</summary>
-    public string QuantileName => Quantile;
+    /// <summary>The quantile whole networks are timed at, in words ("median").</summary>
+    public string NetworkQuantileName => QuantileName(_settings.NetworkQuantile);
 
-    private string Quantile => _settings.Quantile == 0.5 ? "median" : $"{_settings.Quantile * 100:0}th percentile";
+    private string Quantile => QuantileName(_settings.Quantile);
 
-    /// <summary>Each model's time at batch 1: the quantile of its runs over all rounds, the models timed in turn within each round.</summary>
-    private double[] Time(IReadOnlyList<byte[]> models) => Time(models, _settings.Rounds, _settings.Quantile);
+    private static string QuantileName(double quantile) => quantile == 0.5 ? "median" : $"{quantile * 100:0}th percentile";
 
-    private double[] Time(IReadOnlyList<byte[]> models, int rounds, double quantile)
+    /// <summary>Each model's time at batch 1 with the settings of unit probes (see <see cref="CalibrationSettings"/>).</summary>
+    private double[] Time(IReadOnlyList<byte[]> models) => Time(models, _settings.Sessions, _settings.Rounds, _settings.Quantile);
+
+    /// <summary>
+    /// Each model's time at batch 1 on the table's scale: timed beside the anchor (<see cref="TimeUnanchored"/>,
+    /// the anchor read at the units' quantile) and multiplied by the anchor's reference time over its time now.
+    /// </summary>
+    private double[] Time(IReadOnlyList<byte[]> models, int sessions, int rounds, double quantile)
+    {
+        var reference = AnchorMs();
+        var anchorNow = TimeUnanchored([_anchor.Value], sessions, rounds, _settings.Quantile, models, quantile, out var times)[0];
+        var scale = anchorNow > 0 ? reference / anchorNow : 1;
+        return times.Select(t => t * scale).ToArray();
+    }
+
+    private double[] TimeUnanchored(IReadOnlyList<byte[]> models, int sessions, int rounds, double quantile) =>
+        TimeUnanchored(models, sessions, rounds, quantile, [], quantile, out _);
+
+    /// <summary>
+    /// The time at batch 1 of each of <paramref name="models"/> (read at <paramref name="quantile"/>) and of each
+    /// of <paramref name="others"/> (read at <paramref name="othersQuantile"/>), all timed in turn within each
+    /// round: the median over <paramref name="sessions"/> fresh sessions of each one's quantile in that session.
+    /// </summary>
+    private double[] TimeUnanchored(IReadOnlyList<byte[]> models, int sessions, int rounds, double quantile,
+        IReadOnlyList<byte[]> others, double othersQuantile, out double[] othersTimes)
+    {
+        var all = models.Concat(others).ToList();
+        var perSession = all.Select(_ => new List<double>(sessions)).ToList();
+        for (var s = 0; s < sessions; s++)
+        {
+            var times = TimeInOneSession(all, rounds);
+            for (var i = 0; i < all.Count; i++)
+                perSession[i].Add(LatencyStats.Percentile([.. times[i].Order()], i < models.Count ? quantile : othersQuantile));
+        }
+        var medians = perSession.Select(figures => LatencyStats.Percentile([.. figures.Order()], 0.5)).ToArray();
+        othersTimes = medians[models.Count..];
+        return medians[..models.Count];
+    }
+
+    private List<double>[] TimeInOneSession(IReadOnlyList<byte[]> models, int rounds)
     {
         var sessions = new List<Microsoft.ML.OnnxRuntime.InferenceSession>();
         try
         {
             foreach (var model in models) sessions.Add(LatencyMeter.OpenSession(model, threads));
-            var runs = sessions.Select(_ => new List<double>(rounds * _settings.Runs)).ToList();
+            var runs = sessions.Select(_ => new List<double>(rounds * _settings.Runs)).ToArray();
             for (var r = 0; r < rounds; r++)
                 for (var i = 0; i < sessions.Count; i++)
                     runs[i].AddRange(LatencyMeter.TimeRuns(sessions[i], 1, _settings.Warmup, _settings.Runs));
-            return runs.Select(times => LatencyStats.Percentile([.. times.Order()], quantile)).ToArray();
+            return runs;
         }
         finally
         {
