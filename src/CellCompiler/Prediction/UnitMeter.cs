@@ -52,7 +52,7 @@ public sealed class UnitMeter(int threads, int opset, double? anchorMs = null, C
     {
         if (_anchorMs is { } known) return known;
         var load = SystemLoad.OneMinute();
-        var ms = Round(TimeUnanchored([_anchor.Value], _settings.Sessions, 3 * _settings.Rounds, _settings.Quantile)[0]);
+        var ms = Round(TimeTogether([_anchor.Value], _settings.Sessions, 3 * _settings.Rounds, _ => _settings.Quantile)[0]);
         NewAnchor = new UnitTime(ms, string.Create(CultureInfo.InvariantCulture,
             $"{Quantile} of {3 * _settings.Rounds} rounds x {_settings.Runs} runs, median of {_settings.Sessions} sessions; the reference every unit is scaled to"),
             DateTimeOffset.UtcNow, load);
@@ -88,14 +88,15 @@ public sealed class UnitMeter(int threads, int opset, double? anchorMs = null, C
     {
         var bytes = ProbeNetworks.Frame(frame.Skeleton, opset);
         var load = SystemLoad.OneMinute();
-        var total = Time([bytes])[0];
+        var total = Time([bytes], _settings.Sessions, _settings.Rounds, _settings.Quantile, out var anchorScale)[0];
 
         var profile = KernelProfile.Collect(bytes, 1, threads, _settings.Warmup, _settings.Runs * _settings.Rounds * _settings.Sessions);
         var kernelMs = new Dictionary<NetworkPart, double>();
         foreach (var (node, micros) in profile.MicrosecondsByNode)
         {
             var part = NodePath.PartOf(node);
-            kernelMs[part] = kernelMs.GetValueOrDefault(part) + micros / 1000 / profile.Runs;
+            // Profiled now, so on the anchor's scale like the total.
+            kernelMs[part] = kernelMs.GetValueOrDefault(part) + micros / 1000 / profile.Runs * anchorScale;
         }
         var parts = new List<(LatencyUnit Unit, double Ms)>
         {
@@ -119,7 +120,7 @@ public sealed class UnitMeter(int threads, int opset, double? anchorMs = null, C
     /// A whole network's time at batch 1: the median over <see cref="CalibrationSettings.NetworkSessions"/>
     /// sessions of one round of the usual warm-up and timed runs, each read at <see cref="CalibrationSettings.NetworkQuantile"/>.
     /// </summary>
-    public double MeasureNetwork(byte[] model) => Time([model], _settings.NetworkSessions, 1, _settings.NetworkQuantile)[0];
+    public double MeasureNetwork(byte[] model) => Time([model], _settings.NetworkSessions, 1, _settings.NetworkQuantile, out _)[0];
 
     /// <summary>The quantile whole networks are timed at, in words ("median").</summary>
     public string NetworkQuantileName => QuantileName(_settings.NetworkQuantile);
@@ -129,42 +130,35 @@ public sealed class UnitMeter(int threads, int opset, double? anchorMs = null, C
     private static string QuantileName(double quantile) => quantile == 0.5 ? "median" : $"{quantile * 100:0}th percentile";
 
     /// <summary>Each model's time at batch 1 with the settings of unit probes (see <see cref="CalibrationSettings"/>).</summary>
-    private double[] Time(IReadOnlyList<byte[]> models) => Time(models, _settings.Sessions, _settings.Rounds, _settings.Quantile);
+    private double[] Time(IReadOnlyList<byte[]> models) => Time(models, _settings.Sessions, _settings.Rounds, _settings.Quantile, out _);
 
     /// <summary>
-    /// Each model's time at batch 1 on the table's scale: timed beside the anchor (<see cref="TimeUnanchored"/>,
-    /// the anchor read at the units' quantile) and multiplied by the anchor's reference time over its time now.
+    /// Each model's time at batch 1 on the table's scale: timed beside the anchor (the anchor read at the
+    /// units' quantile) and multiplied by <paramref name="scale"/>, the anchor's reference time over its time now.
     /// </summary>
-    private double[] Time(IReadOnlyList<byte[]> models, int sessions, int rounds, double quantile)
+    private double[] Time(IReadOnlyList<byte[]> models, int sessions, int rounds, double quantile, out double scale)
     {
         var reference = AnchorMs();
-        var anchorNow = TimeUnanchored([_anchor.Value], sessions, rounds, _settings.Quantile, models, quantile, out var times)[0];
-        var scale = anchorNow > 0 ? reference / anchorNow : 1;
-        return times.Select(t => t * scale).ToArray();
+        var figures = TimeTogether([_anchor.Value, .. models], sessions, rounds, i => i == 0 ? _settings.Quantile : quantile);
+        var factor = figures[0] > 0 ? reference / figures[0] : 1;
+        scale = factor;
+        return figures[1..].Select(t => t * factor).ToArray();
     }
 
-    private double[] TimeUnanchored(IReadOnlyList<byte[]> models, int sessions, int rounds, double quantile) =>
-        TimeUnanchored(models, sessions, rounds, quantile, [], quantile, out _);
-
     /// <summary>
-    /// The time at batch 1 of each of <paramref name="models"/> (read at <paramref name="quantile"/>) and of each
-    /// of <paramref name="others"/> (read at <paramref name="othersQuantile"/>), all timed in turn within each
-    /// round: the median over <paramref name="sessions"/> fresh sessions of each one's quantile in that session.
+    /// The time at batch 1 of each model, all timed in turn within each round: the median over
+    /// <paramref name="sessions"/> fresh sessions of the model's quantile (<paramref name="quantileOf"/> its
+    /// index) of its runs in that session.
     /// </summary>
-    private double[] TimeUnanchored(IReadOnlyList<byte[]> models, int sessions, int rounds, double quantile,
-        IReadOnlyList<byte[]> others, double othersQuantile, out double[] othersTimes)
+    private double[] TimeTogether(IReadOnlyList<byte[]> models, int sessions, int rounds, Func<int, double> quantileOf)
     {
-        var all = models.Concat(others).ToList();
-        var perSession = all.Select(_ => new List<double>(sessions)).ToList();
+        var perSession = models.Select(_ => new List<double>(sessions)).ToList();
         for (var s = 0; s < sessions; s++)
         {
-            var times = TimeInOneSession(all, rounds);
-            for (var i = 0; i < all.Count; i++)
-                perSession[i].Add(LatencyStats.Percentile([.. times[i].Order()], i < models.Count ? quantile : othersQuantile));
+            var times = TimeInOneSession(models, rounds);
+            for (var i = 0; i < models.Count; i++) perSession[i].Add(LatencyStats.Percentile([.. times[i].Order()], quantileOf(i)));
         }
-        var medians = perSession.Select(figures => LatencyStats.Percentile([.. figures.Order()], 0.5)).ToArray();
-        othersTimes = medians[models.Count..];
-        return medians[..models.Count];
+        return perSession.Select(figures => LatencyStats.Percentile([.. figures.Order()], 0.5)).ToArray();
     }
 
     private List<double>[] TimeInOneSession(IReadOnlyList<byte[]> models, int rounds)
