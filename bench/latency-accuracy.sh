@@ -68,11 +68,11 @@ for preset in $presets; do
       log "check $preset $merge $vocabulary ($n candidates)"
       cellc check "$work/$vocabulary-$n.jsonl" --skeleton "$preset" --merge "$merge" --latency "${timing[@]}" \
         --latency-table "$table" --no-cache --jobs 1 --out "$out" >/dev/null 2>"$work/check-$preset-$merge-$vocabulary.log" || true
+      rm -f "$out.again"
       if [[ ${REPEAT:-1} == 1 ]]; then
         log "check $preset $merge $vocabulary again ($n candidates, measured only)"
         cellc check "$work/$vocabulary-$n.jsonl" --skeleton "$preset" --merge "$merge" --latency "${timing[@]}" \
           --no-cache --jobs 1 --out "$out.again" >/dev/null 2>>"$work/check-$preset-$merge-$vocabulary.log" || true
-        out="$out+$out.again"
       fi
       results+=("$preset $merge $vocabulary=$out")
     done

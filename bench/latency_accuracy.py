@@ -1,7 +1,7 @@
 #!/usr/bin/python3
 """Accuracy of predicted against measured latency, from `cellc check --latency --latency-table` results.
 
-Usage: latency_accuracy.py LABEL=RESULTS.jsonl[+AGAIN.jsonl] [...]
+Usage: latency_accuracy.py LABEL=RESULTS.jsonl [LABEL=RESULTS.jsonl ...]
 
 Reads every record holding both `latency_ms` (measured p50 at batch 1) and `latency_predicted_ms`
 and prints, per file and per group of files sharing the label's first word (the preset): the
@@ -10,11 +10,12 @@ error, and Spearman's rank correlation (Pearson's correlation of the ranks, ties
 usual definition). A second table does the same against the fastest timed run (`min_ms` of the
 record's batch 1), which background load disturbs least: on a busy machine the p50 reads slower
 than the machine is, the minimum much less so. When a second measurement of the same population
-is given (+AGAIN.jsonl, `check --latency` run again), a third table sets it against the first as if
-it were a prediction: how well the machine reproduces its own p50, the ceiling of any predictor's
+lies beside a results file (RESULTS.jsonl.again, `check --latency` run again), a third table sets
+it against the first as if it were a prediction: how well the machine reproduces its own p50, the ceiling of any predictor's
 agreement with one measurement. Plain Python: no library beyond the standard one.
 """
 import json
+import os
 import statistics
 import sys
 
@@ -92,19 +93,19 @@ def main(argv):
         groups = {}
         for arg in argv[1:]:
             label, path = arg.split("=", 1)
-            data = pairs(path.split("+")[0], field)
+            data = pairs(path, field)
             groups.setdefault(label.split()[0], []).extend(data)
             print(summary(label, data))
         for preset, data in groups.items():
             print(summary(preset + " (all)", data))
         print()
-    repeats = [arg.split("=", 1) for arg in argv[1:] if "+" in arg.split("=", 1)[1]]
+    repeats = [arg.split("=", 1) for arg in argv[1:] if os.path.exists(arg.split("=", 1)[1] + ".again")]
     if repeats:
         print("The second measurement against the first (the machine's own reproducibility):")
         print(f"{'population':<28} {'n':>5} {'within10':>10} {'med|err|':>10} {'med err':>10} {'spearman':>9}   measured range")
         groups = {}
-        for label, paths in repeats:
-            data = remeasured(*paths.split("+", 1))
+        for label, path in repeats:
+            data = remeasured(path, path + ".again")
             groups.setdefault(label.split()[0], []).extend(data)
             print(summary(label, data))
         for preset, data in groups.items():

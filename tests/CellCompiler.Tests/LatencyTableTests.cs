@@ -157,6 +157,7 @@ public sealed class LatencyTableTests
         { "other format", "format: must be \"latency-table/1\"" },
         { "null unit", "units[1]: must be an object" },
         { "falling fit", "fit.slope: must be a finite number above 0" },
+        { "anchor of 0 ms", "ms: the anchor's time must be above 0 ms" },
     };
 
     [Theory]
@@ -179,6 +180,10 @@ public sealed class LatencyTableTests
             case "repeated unit": units.Add(units[0]!.DeepClone()); text = json.ToJsonString(); break;
             case "other format": json["format"] = "latency-table/0"; text = json.ToJsonString(); break;
             case "null unit": units.Insert(1, null); text = json.ToJsonString(); break;
+            case "anchor of 0 ms":
+                units.Add(JsonNode.Parse("""{"unit": "anchor conv3x3/4 @32x16x16", "ms": 0, "how": "by hand", "measured": "2026-12-02T00:00:00+00:00", "load": null}"""));
+                text = json.ToJsonString();
+                break;
             case "falling fit":
                 json["fit"] = JsonNode.Parse("""{"intercept_ms": 0.1, "slope": -1, "networks": 12, "mean_absolute_error_percent": 4, "how": "by hand", "measured": "2026-12-02T00:00:00+00:00", "load": null, "skeleton": "{}"}""");
                 text = json.ToJsonString();

@@ -17,7 +17,7 @@ public static class CalibrateCommand
         {
             HelpName = "TABLE",
             Description = "The latency table to write (JSON). An existing table made on this machine under the same conditions keeps " +
-                          "its other units; the units measured now replace theirs.",
+                          "its other units and its anchor (the reference every unit is scaled to); the units measured now replace theirs.",
             Required = true,
         };
         var primitives = new Option<string?>("--primitives")
@@ -72,7 +72,7 @@ public static class CalibrateCommand
             var request = new CalibrationRequest(skeleton.Resolve(parse), table, parse.GetValue(maxFanIn), parse.GetValue(threads), parse.GetValue(settings.Opset),
                 parse.GetValue(fitNetworks));
             var startLoad = SystemLoad.OneMinute();
-            Console.Error.WriteLine($"cellc calibrate: {Wording.Counted(Calibration.Plan(request).Count, "unit")} of {CompileReport.DescribeSkeleton(request.Skeleton)}, " +
+            Console.Error.WriteLine($"cellc calibrate: {Wording.Counted(Calibration.Plan(request).Count, "unit")} (and the anchor, if the table has none) of {CompileReport.DescribeSkeleton(request.Skeleton)}, " +
                                     $"{Wording.Counted(request.Threads, "thread")}, opset {request.Opset}{LoadNote(startLoad)}");
             if (startLoad is { } load && load > Environment.ProcessorCount)
                 Console.Error.WriteLine($"cellc calibrate: warning: the load average ({Number(load)}) exceeds the {Environment.ProcessorCount} cores: " +

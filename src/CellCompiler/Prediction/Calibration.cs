@@ -55,16 +55,17 @@ public static class Calibration
     public static LatencyTable Run(string path, CalibrationRequest request, Action<CalibrationStep> progress)
     {
         var here = TableConditions.Here(request.Threads, request.Opset);
-        var existing = File.Exists(path) ? LatencyTableFile.Read(path) : null;
-        if (existing is not null) LatencyPredictor.RequireConditions(existing, here, path);
+        if (File.Exists(path)) LatencyPredictor.RequireConditions(LatencyTableFile.Read(path), here, path);
         var frame = NetworkFrame.Of(request.Skeleton);
         var plan = Plan(request);
-        // A table keeps its first anchor for good: its other entries, of this calibration or not, are on that scale.
-        var meter = new UnitMeter(request.Threads, request.Opset, existing?.Find(AnchorUnit.Instance)?.Ms);
-        var steps = plan.Count + Math.Max(0, request.FitNetworks) + (existing?.Contains(AnchorUnit.Instance) == true ? 0 : 1);
+        var meter = new UnitMeter(request.Threads, request.Opset);
         var clock = Stopwatch.StartNew();
-        LatencyTable? table = null;
+        // A table keeps its first anchor, so that its entries share one scale (a table from before anchors gets one now; its
+        // older entries were not measured against it, which the README says: calibrate such a table anew).
+        var (table, newAnchor) = AnchorSettlement.Settle(path, here, meter);
+        var steps = plan.Count + Math.Max(0, request.FitNetworks) + (newAnchor is null ? 0 : 1);
         var done = 0;
+        if (newAnchor is not null) progress(new CalibrationStep(++done, steps, AnchorUnit.Instance.Key, newAnchor.Ms, clock.Elapsed, newAnchor.Load));
 
         void Store(IReadOnlyList<(LatencyUnit Unit, UnitTime Time)> measured)
         {
@@ -80,8 +81,6 @@ public static class Calibration
                 progress(new CalibrationStep(++done, steps, unit.Key, time.Ms, clock.Elapsed, time.Load));
         }
 
-        meter.AnchorMs();
-        if (meter.NewAnchor is { } anchor) Store([(AnchorUnit.Instance, anchor)]);
         Store(meter.MeasureFrame(frame));
         foreach (var unit in plan.Where(u => u is PrimitiveUnit or MergeUnit))
             Store([(unit, meter.MeasureChain(unit))]);

@@ -51,8 +51,13 @@ public sealed class LatencyPredictor
     public static LatencyPredictor InMemory(LatencyTable table) =>
         new(table, null, MeterFor(table, table.Conditions.Threads, table.Conditions.Opset), null);
 
-    /// <summary>Units measured on first use are put on the table's scale by its anchor (a table from before anchors gets one then).</summary>
-    private static UnitMeter MeterFor(LatencyTable table, int threads, int opset) => new(threads, opset, table.Find(AnchorUnit.Instance)?.Ms);
+    /// <summary>Units measured on first use are put on the table's scale by its anchor (a table without one gets one before its first such unit).</summary>
+    private static UnitMeter MeterFor(LatencyTable table, int threads, int opset)
+    {
+        var meter = new UnitMeter(threads, opset);
+        if (table.Find(AnchorUnit.Instance) is { } anchor) meter.UseAnchor(anchor.Ms);
+        return meter;
+    }
 
     public static void RequireConditions(LatencyTable table, TableConditions here, string path)
     {
@@ -115,6 +120,7 @@ public sealed class LatencyPredictor
         if (units.Count == 0) return;
         lock (_measuring)
         {
+            if (!_meter.HasAnchor) SettleAnchor();
             var measured = new List<KeyValuePair<string, UnitTime>>();
             var frameMeasured = false;
             foreach (var unit in units)
@@ -136,9 +142,32 @@ public sealed class LatencyPredictor
                         throw new InvalidOperationException($"unknown unit {unit.GetType().Name}");
                 }
             }
-            if (_meter.NewAnchor is { } anchor && !_table.Contains(AnchorUnit.Instance)) measured.Add(new(AnchorUnit.Instance.Key, anchor));
             Save(measured);
         }
+    }
+
+    /// <summary>
+    /// Gives a table without an anchor one before its first unit is measured: through its file, under the
+    /// file's lock, so that processes sharing the table agree on it (<see cref="AnchorSettlement"/>); in
+    /// memory when there is no file or it cannot be written.
+    /// </summary>
+    private void SettleAnchor()
+    {
+        if (_path is not null && !_saveFailed)
+        {
+            try
+            {
+                var (file, _) = AnchorSettlement.Settle(_path, _table.Conditions, _meter);
+                _table = file.With(_table.Units, replace: false);
+                return;
+            }
+            catch (OutputException e)
+            {
+                _saveFailed = true;
+                _warning($"the units measured on first use are kept for this run only: {e.Message}");
+            }
+        }
+        _table = AnchorSettlement.Settle(_table, _meter).Table;
     }
 
     /// <summary>Adds entries to the table, and to its file when there is one (a file that cannot be written is warned about once).</summary>

@@ -109,6 +109,8 @@ public static class LatencyTableFile
                 throw Bad(origin, path + ".unit", $"'{u.Unit}' is not a unit (it must start with one of {string.Join(", ", LatencyUnit.KindWords)})");
             if (!double.IsFinite(u.Ms) || u.Ms < 0)
                 throw Bad(origin, path + ".ms", $"must be a finite time of at least 0 ms, found {u.Ms.ToString(CultureInfo.InvariantCulture)}");
+            if (kind == "anchor" && u.Ms <= 0)
+                throw Bad(origin, path + ".ms", "the anchor's time must be above 0 ms: every unit is scaled by it; make the table again with cellc calibrate");
             if (!seen.Add(u.Unit))
                 throw Bad(origin, path + ".unit", $"'{u.Unit}' is listed twice");
             units.Add(new(u.Unit, new UnitTime(u.Ms, u.How, u.Measured, u.Load)));

@@ -6,8 +6,8 @@ namespace CellCompiler.Prediction;
 /// chains whose few weights stay in the core's caches; a whole network streams more weights and
 /// activations than the caches hold, so the sum reads low, and more so the larger the network
 /// (README, measured); and the units are read at a low quantile of their runs while `check --latency`
-/// reports the median. A ratio fitted to whole networks of the skeleton, timed over several rounds and
-/// read at their median, corrects both to first order. Calibration fits the line
+/// reports the median. A ratio fitted to whole networks of the skeleton, each timed in several sessions
+/// and read at its median, corrects both to first order. Calibration fits the line
 /// through 0 (<see cref="Line"/>); a table may hold an intercept all the same, and it is applied.
 /// </summary>
 /// <param name="Networks">How many whole networks the line was fitted to.</param>

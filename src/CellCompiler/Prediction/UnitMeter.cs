@@ -27,37 +27,41 @@ public sealed record CalibrationSettings(int Sessions = 3, int Rounds = 3, int W
 /// <summary>
 /// Measures units on ONNX Runtime under the session settings of `bench` (<see cref="LatencyMeter"/>).
 /// Every probe is timed beside the anchor (<see cref="AnchorUnit"/>) in the same sessions and rounds,
-/// and scaled by the anchor's time in the table (<paramref name="anchorMs"/>) over its time now, so
-/// that units measured minutes or days apart, while the machine ran faster or slower, share one scale.
-/// Without a table's anchor the meter times the anchor first and that becomes the reference
-/// (<see cref="NewAnchor"/>, to be stored in the table).
+/// and scaled by the anchor's reference time (the table's, see <see cref="AnchorSettlement"/>) over its
+/// time now, so that units measured minutes or days apart, while the machine ran faster or slower,
+/// share one scale. Not thread-safe: one caller at a time (calibration, or a predictor under its lock).
 /// </summary>
-public sealed class UnitMeter(int threads, int opset, double? anchorMs = null, CalibrationSettings? settings = null)
+public sealed class UnitMeter(int threads, int opset, CalibrationSettings? settings = null)
 {
     private readonly CalibrationSettings _settings = settings ?? CalibrationSettings.Default;
     private readonly Lazy<byte[]> _anchor = new(() => ProbeNetworks.Anchor(opset));
-    private double? _anchorMs = anchorMs;
+    private double? _anchorMs;
 
     public int Threads => threads;
     public int Opset => opset;
 
-    /// <summary>The anchor's reference time when this meter measured it (the table had none); null otherwise.</summary>
-    public UnitTime? NewAnchor { get; private set; }
+    /// <summary>Whether the meter has an anchor reference to scale to (<see cref="UseAnchor"/>).</summary>
+    public bool HasAnchor => _anchorMs is not null;
+
+    /// <summary>Scales every later measurement to this reference time of the anchor (a table's entry, above 0).</summary>
+    public void UseAnchor(double ms)
+    {
+        if (!(ms > 0) || !double.IsFinite(ms)) throw new ArgumentOutOfRangeException(nameof(ms), ms, "an anchor time must be above 0");
+        _anchorMs = ms;
+    }
 
     /// <summary>
-    /// The anchor's reference time: the table's, or measured now (3 times the usual rounds, so that the
-    /// reference is steady) when there is none.
+    /// Times the anchor as every reading of it is timed (the unit probes' sessions and rounds, its
+    /// quantile), makes that the reference and returns it as a table entry.
     /// </summary>
-    public double AnchorMs()
+    public UnitTime MeasureAnchor()
     {
-        if (_anchorMs is { } known) return known;
         var load = SystemLoad.OneMinute();
-        var ms = Round(TimeTogether([_anchor.Value], _settings.Sessions, 3 * _settings.Rounds, _ => _settings.Quantile)[0]);
-        NewAnchor = new UnitTime(ms, string.Create(CultureInfo.InvariantCulture,
-            $"{Quantile} of {3 * _settings.Rounds} rounds x {_settings.Runs} runs, median of {_settings.Sessions} sessions; the reference every unit is scaled to"),
+        var ms = Round(TimeTogether([_anchor.Value], _settings.Sessions, _settings.Rounds, _ => _settings.Quantile)[0]);
+        UseAnchor(ms);
+        return new UnitTime(ms, string.Create(CultureInfo.InvariantCulture,
+            $"{Quantile} of {_settings.Rounds} rounds x {_settings.Runs} runs, median of {_settings.Sessions} sessions; the reference every unit is scaled to"),
             DateTimeOffset.UtcNow, load);
-        _anchorMs = ms;
-        return ms;
     }
 
     /// <summary>A primitive's or a merge's time: the difference between a long and a short chain of it, per extra copy.</summary>
@@ -72,10 +76,10 @@ public sealed class UnitMeter(int threads, int opset, double? anchorMs = null, C
             _ => throw new InvalidOperationException($"{unit.Key} is not measured as a chain"),
         };
         var load = SystemLoad.OneMinute();
-        var times = Time([shortBytes, longBytes]);
+        var times = Time([shortBytes, longBytes], _settings.Sessions, _settings.Rounds, _settings.Quantile, out var scale);
         var ms = (times[1] - times[0]) / copies;
         var how = string.Create(CultureInfo.InvariantCulture,
-            $"chains of {shortLength} and {shortLength + copies}: {Quantile} of {Ms(times[0])} and {Ms(times[1])} ms (median of {_settings.Sessions} sessions)");
+            $"chains of {shortLength} and {shortLength + copies}: {Quantile} of {Ms(times[0])} and {Ms(times[1])} ms (median of {_settings.Sessions} sessions; x{scale:0.000} for the anchor)");
         return new UnitTime(Round(Math.Max(0, ms)), how, DateTimeOffset.UtcNow, load);
     }
 
@@ -109,7 +113,7 @@ public sealed class UnitMeter(int threads, int opset, double? anchorMs = null, C
         // Profiled kernels (mean times, profiler on) can add up to more than the frame's run; the parts then share its time.
         var scale = inParts > total ? total / inParts : 1;
         var how = string.Create(CultureInfo.InvariantCulture,
-            $"frame of {Ms(total)} ms ({Quantile}) split by profiled kernel time");
+            $"frame of {Ms(total)} ms ({Quantile}, median of {_settings.Sessions} sessions; x{anchorScale:0.000} for the anchor) split by profiled kernel time");
         var now = DateTimeOffset.UtcNow;
         var result = parts.Select(p => (p.Unit, new UnitTime(Round(p.Ms * scale), how, now, load))).ToList();
         result.Add((RunUnit.Instance, new UnitTime(Round(Math.Max(0, total - inParts * scale)), how, now, load)));
@@ -129,16 +133,13 @@ public sealed class UnitMeter(int threads, int opset, double? anchorMs = null, C
 
     private static string QuantileName(double quantile) => quantile == 0.5 ? "median" : $"{quantile * 100:0}th percentile";
 
-    /// <summary>Each model's time at batch 1 with the settings of unit probes (see <see cref="CalibrationSettings"/>).</summary>
-    private double[] Time(IReadOnlyList<byte[]> models) => Time(models, _settings.Sessions, _settings.Rounds, _settings.Quantile, out _);
-
     /// <summary>
     /// Each model's time at batch 1 on the table's scale: timed beside the anchor (the anchor read at the
     /// units' quantile) and multiplied by <paramref name="scale"/>, the anchor's reference time over its time now.
     /// </summary>
     private double[] Time(IReadOnlyList<byte[]> models, int sessions, int rounds, double quantile, out double scale)
     {
-        var reference = AnchorMs();
+        var reference = _anchorMs ?? throw new InvalidOperationException("no anchor reference: settle the table's anchor first (AnchorSettlement)");
         var figures = TimeTogether([_anchor.Value, .. models], sessions, rounds, i => i == 0 ? _settings.Quantile : quantile);
         var factor = figures[0] > 0 ? reference / figures[0] : 1;
         scale = factor;
