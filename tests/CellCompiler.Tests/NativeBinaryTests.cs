@@ -87,9 +87,12 @@ public sealed class NativeBinaryTests
         var records = Records(folder.File("first.jsonl"));
         Assert.Equal(["gen7-001", "gen7-002", "gen7-003", "gen7-004", "gen7-005", "gen7-006"], records.Select(r => (string)r["id"]!));
         Assert.Equal(["ok", "ok", "broken", "ok", "ok", "invalid"], records.Select(r => (string)r["status"]!));
-        // Every ok candidate went through the ONNX Runtime smoke run, none came from the cache.
+        // Every ok candidate went through the ONNX Runtime smoke run, and none came from the cache but gen7-005: it is
+        // gen7-004's network with its edges listed in another order (one hash), so when gen7-004 finishes first in
+        // this very run, gen7-005 is rightly answered from the cache (the two workers decide which comes first).
         Assert.All(records.Where(r => (string)r["status"]! == "ok"), r => Assert.True((bool)r["smoke_tested"]!));
-        Assert.All(records, r => Assert.False((bool)r["cached"]!));
+        Assert.Equal((string)records[3]["hash"]!, (string)records[4]["hash"]!);
+        Assert.All(records.Where(r => (string)r["id"]! != "gen7-005"), r => Assert.False((bool)r["cached"]!));
 
         var jit = ProcessRunner.Cellc("check", Population, "--out", folder.File("jit.jsonl"), "--no-cache", "--ordered");
         Assert.Equal(1, jit.ExitCode);
