@@ -11,8 +11,9 @@ usual definition). A second table does the same against the fastest timed run (`
 record's batch 1), which background load disturbs least: on a busy machine the p50 reads slower
 than the machine is, the minimum much less so. When a second measurement of the same population
 lies beside a results file (RESULTS.jsonl.again, `check --latency` run again), a third table sets
-it against the first as if it were a prediction: how well the machine reproduces its own p50, the ceiling of any predictor's
-agreement with one measurement. Plain Python: no library beyond the standard one.
+it against the first as if it were a prediction: how well the machine reproduces its own p50, the
+ceiling of any predictor's agreement with one measurement. Plain Python: no library beyond the
+standard one.
 """
 import json
 import os
