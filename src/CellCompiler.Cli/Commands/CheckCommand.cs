@@ -35,6 +35,18 @@ public static class CheckCommand
             DefaultValueFactory = _ => CheckOptions.DefaultMaxRunNodes,
             CustomParser = r => HumanNumber.WholeNumber(1, 10_000_000)(r),
         };
+        var maxRunMacs = new Option<long?>("--max-run-macs")
+        {
+            HelpName = "N",
+            Description = $"Run a network on ONNX Runtime only up to N multiply-accumulates per sample (default {CheckOptions.DefaultMaxRunMacs / 1e9:0}G); larger ones are counted but reported as over_budget (too large to run here).",
+            CustomParser = HumanNumber.ParsePositiveCount,
+        };
+        var maxRunSeconds = new Option<double?>("--max-run-seconds")
+        {
+            HelpName = "X",
+            Description = $"Stop a candidate's run on ONNX Runtime after X seconds (default {CheckOptions.DefaultMaxRunSeconds:0}) and report it as over_budget (too large to run here).",
+            CustomParser = HumanNumber.PositiveAmount("s"),
+        };
         var memoryLimit = new Option<double?>("--memory-limit-gb")
         {
             HelpName = "X",
@@ -67,7 +79,7 @@ public static class CheckCommand
             "Statuses: ok, over_budget, broken, invalid. Exit 0 if all are ok, 1 otherwise, 2 on a bad command line " +
             "or a bad single genotype file.");
         command.Arguments.Add(inputs);
-        foreach (var option in new Option[] { json, output, jobs, ordered, cachePath, noCache, resume, shard, latency, latencyTable, staticOnly, maxRunNodes, memoryLimit, runOverBudget })
+        foreach (var option in new Option[] { json, output, jobs, ordered, cachePath, noCache, resume, shard, latency, latencyTable, staticOnly, maxRunNodes, maxRunMacs, maxRunSeconds, memoryLimit, runOverBudget })
             command.Options.Add(option);
         skeleton.AddTo(command);
         settings.AddTo(command);
@@ -92,6 +104,8 @@ public static class CheckCommand
                 Options = new CheckOptions(skeleton.Resolve(parse), settings.Resolve(parse), budget,
                     parse.GetValue(budgets.TrainBatch), latencySettings, parse.GetValue(maxRunNodes), parse.GetValue(runOverBudget))
                 {
+                    MaxRunMacs = parse.GetValue(maxRunMacs) ?? CheckOptions.DefaultMaxRunMacs,
+                    MaxRunSeconds = parse.GetValue(maxRunSeconds) ?? CheckOptions.DefaultMaxRunSeconds,
                     LatencyTablePath = parse.GetValue(latencyTable),
                     PredictionThreads = requested.Threads,
                     Static = parse.GetValue(staticOnly),

@@ -17,11 +17,18 @@ public static class Compiler
     /// <exception cref="DeadCellException">the cell's output does not depend on its input</exception>
     /// <exception cref="CompileException">the network cannot be formed or would be too large</exception>
     /// <param name="hashes">The genotype's hashes when the caller has them already for this skeleton's merge mode (hashing can be the costly part for symmetric motifs).</param>
-    public static CompiledModel Compile(Genotype genotype, Skeleton skeleton, CompileOptions? options = null, GenotypeHashes? hashes = null)
+    public static CompiledModel Compile(Genotype genotype, Skeleton skeleton, CompileOptions? options = null, GenotypeHashes? hashes = null) =>
+        Emit(genotype, skeleton, CompileFigures(genotype, skeleton, options, hashes));
+
+    /// <summary>
+    /// The second half of <see cref="Compile"/>: draws the weights and writes the ONNX model of a network
+    /// whose figures are known, so that a caller can first decide whether the weights' bytes fit
+    /// (<see cref="Figures.NetworkFigures.WeightBytes"/>, about the model's size).
+    /// </summary>
+    /// <param name="compiled">What <see cref="CompileFigures"/> gave for this genotype and skeleton.</param>
+    public static CompiledModel Emit(Genotype genotype, Skeleton skeleton, CompiledFigures compiled)
     {
-        var compiled = CompileFigures(genotype, skeleton, options, hashes);
-        options = compiled.Options;
-        hashes = compiled.Hashes;
+        var (options, hashes) = (compiled.Options, compiled.Hashes);
         var metadata = new List<KeyValuePair<string, string>>
         {
             new("genotype_name", genotype.Name),

@@ -54,8 +54,14 @@ public sealed class ForwardPass : IDisposable
 
     public ForwardResult Run(float[] input, long[] shape)
     {
-        using var tensor = OrtValue.CreateTensorValueFromMemory(input, shape);
         using var runOptions = new RunOptions();
+        return Run(input, shape, runOptions);
+    }
+
+    /// <summary>A run under the caller's options: setting their <see cref="RunOptions.Terminate"/> from another thread stops it.</summary>
+    public ForwardResult Run(float[] input, long[] shape, RunOptions runOptions)
+    {
+        using var tensor = OrtValue.CreateTensorValueFromMemory(input, shape);
         using var outputs = _session.Run(runOptions, [InputName], [tensor], [OutputName]);
         var output = outputs[0];
         return new ForwardResult(output.GetTensorDataAsSpan<float>().ToArray(), output.GetTensorTypeAndShape().Shape);

@@ -247,8 +247,9 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             latencyKey = $"{key}|{LatencyKey(settings)}";
             if (cache?.FindLatency(latencyKey) is null && model is null)
             {
-                using var reservation = _memory.Reserve(CompileEstimate(genotype));
-                model = Compiler.Compile(genotype, options.Skeleton, options.Compile, hashes).OnnxBytes;
+                var (again, compiled) = Compile(genotype, hashes);
+                if (compiled is not null) model = compiled.OnnxBytes;
+                else (evaluation, latencyKey) = (again with { Spelling = spelling }, null); // a cached verdict whose model does not fit in this run
             }
         }
         return new Prepared(hashes, warnings, notes, evaluation, cached, model, latencyKey);
@@ -293,12 +294,14 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         return Math.Min(ExpansionSize.CellPrimitiveOps(genotype) * cells, Limits.MaxExpandedPrimitiveOps + 1) * CompileBytesPerOp;
     }
 
-    /// <summary>Why a compiled network is not run here: too many nodes, or more memory than this run may use.</summary>
+    /// <summary>Why a compiled network is not run here: too many nodes or MACs, or more memory than this run may use.</summary>
     private string? TooLargeToRun(NetworkFigures figures)
     {
         var nodes = figures.OpCounts.Values.Sum(n => (long)n);
         if (nodes > options.MaxRunNodes)
             return $"not run on ONNX Runtime: the network has {nodes:N0} nodes, more than the {options.MaxRunNodes:N0} a check runs (--max-run-nodes)";
+        if (figures.Macs > options.MaxRunMacs)
+            return $"not run on ONNX Runtime: the network has {figures.Macs:N0} MACs per sample, more than the {options.MaxRunMacs:N0} a check runs (--max-run-macs)";
         var needed = RunEstimate(figures);
         return needed > _memory.CapacityBytes
             ? $"not run on ONNX Runtime: it needs about {Gigabytes(needed)} GB, more than the {Gigabytes(_memory.CapacityBytes)} GB this run may use (--memory-limit-gb)"
@@ -317,7 +320,12 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         if (NotRun(compiled, predicted) is { } notRun) return (notRun, model.OnnxBytes);
         SmokeVerdict verdict;
         using (_memory.Reserve(RunEstimate(model.Figures)))
-            verdict = SmokeTest.Run(model.OnnxBytes, model.InputShape.Dims, model.OutputShape.Dims, options.Compile.Seed);
+            verdict = SmokeTest.Run(model.OnnxBytes, model.InputShape.Dims, model.OutputShape.Dims, options.Compile.Seed,
+                // Beyond about eleven days a limit means none (and timers cannot hold much more).
+                options.MaxRunSeconds < 1e6 ? TimeSpan.FromSeconds(options.MaxRunSeconds) : null);
+        // Stopped at the time limit: nothing is known of the model, as for a network too large to run.
+        if (verdict.OutOfTime)
+            return (compiled with { FailureReason = $"{verdict.Problem} (--max-run-seconds)" }, model.OnnxBytes);
         var evaluation = compiled with
         {
             Failure = verdict.Works ? null : CheckStatus.Broken,
@@ -331,45 +339,67 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     /// <summary>Compile without weights or ONNX bytes, and count: all a static check needs (failures as in <see cref="Compile"/>).</summary>
     private Evaluation EvaluateStatic(Genotype genotype, GenotypeHashes hashes)
     {
-        using var reservation = _memory.Reserve(CompileEstimate(genotype));
-        try
-        {
-            var model = Compiler.CompileFigures(genotype, options.Skeleton, options.Compile, hashes);
-            var activation = TrainingMemory.ActivationBytesPerSample(model.Network);
-            return new Evaluation(null, null, null, model.OutputShape.Dims, model.Figures, activation, null, SmokeTested: false);
-        }
-        catch (DeadCellException dead)
-        {
-            return new Evaluation(CheckStatus.Broken, dead.Message, "dead cell", null, null, null, null);
-        }
-        catch (CompileException e)
-        {
-            return new Evaluation(CheckStatus.Invalid, e.Message, "invalid: cannot form the network", null, null, null, null);
-        }
+        var (figures, failure) = CompileFigures(genotype, hashes);
+        return failure ?? Counted(figures!, onnxBytes: null, reason: null);
     }
 
-    /// <summary>The compile alone: figures (not run yet), or why the network cannot be formed.</summary>
+    /// <summary>
+    /// The compile alone: figures (not run yet), or why the network cannot be formed. Both halves run
+    /// under the memory guard, one after the other (never nested, so workers cannot wait on each
+    /// other): the structure by its op count first, then the weights, whose bytes the figures give.
+    /// Weights that would not fit leave a counted network without a model, reported too large to run here.
+    /// </summary>
     private (Evaluation, CompiledModel?) Compile(Genotype genotype, GenotypeHashes hashes)
     {
+        var (figures, failure) = CompileFigures(genotype, hashes);
+        if (failure is not null) return (failure, null);
+        var need = CompileEstimate(genotype) + figures!.Figures.WeightBytes;
         CompiledModel model;
-        using (var reservation = _memory.Reserve(CompileEstimate(genotype)))
+        using (var reservation = _memory.Reserve(need))
         {
+            if (reservation is null)
+                return (Counted(figures, onnxBytes: null,
+                    $"not compiled to ONNX: its weights and structure need about {Gigabytes(need)} GB, more than the {Gigabytes(_memory.CapacityBytes)} GB this run may use (--memory-limit-gb)"), null);
             try
             {
-                model = Compiler.Compile(genotype, options.Skeleton, options.Compile, hashes);
-            }
-            catch (DeadCellException dead)
-            {
-                return (new Evaluation(CheckStatus.Broken, dead.Message, "dead cell", null, null, null, null), null);
+                model = Compiler.Emit(genotype, options.Skeleton, figures);
             }
             catch (CompileException e)
             {
                 return (new Evaluation(CheckStatus.Invalid, e.Message, "invalid: cannot form the network", null, null, null, null), null);
             }
         }
-        var activation = TrainingMemory.ActivationBytesPerSample(model.Network);
-        return (new Evaluation(null, null, null, model.OutputShape.Dims, model.Figures, activation, model.OnnxBytes.LongLength, SmokeTested: false), model);
+        return (Counted(figures, model.OnnxBytes.LongLength, reason: null), model);
     }
+
+    /// <summary>Lowering, shapes and figures under the memory guard; a failure is the evaluation to report.</summary>
+    private (CompiledFigures?, Evaluation?) CompileFigures(Genotype genotype, GenotypeHashes hashes)
+    {
+        var need = CompileEstimate(genotype);
+        using var reservation = _memory.Reserve(need);
+        if (reservation is null)
+            return (null, new Evaluation(CheckStatus.OverBudget,
+                $"not compiled: its {ExpansionSize.CellPrimitiveOps(genotype) * options.Skeleton.Stages.Sum(s => (long)s.Cells):N0} primitive ops need about " +
+                $"{Gigabytes(need)} GB to compile, more than the {Gigabytes(_memory.CapacityBytes)} GB this run may use (--memory-limit-gb)",
+                TooLargeKind, null, null, null, null, SmokeTested: false));
+        try
+        {
+            return (Compiler.CompileFigures(genotype, options.Skeleton, options.Compile, hashes), null);
+        }
+        catch (DeadCellException dead)
+        {
+            return (null, new Evaluation(CheckStatus.Broken, dead.Message, "dead cell", null, null, null, null));
+        }
+        catch (CompileException e)
+        {
+            return (null, new Evaluation(CheckStatus.Invalid, e.Message, "invalid: cannot form the network", null, null, null, null));
+        }
+    }
+
+    /// <summary>A compiled network's evaluation before any run; a reason says why it is not run.</summary>
+    private static Evaluation Counted(CompiledFigures figures, long? onnxBytes, string? reason) =>
+        new(null, reason, null, figures.OutputShape.Dims, figures.Figures,
+            TrainingMemory.ActivationBytesPerSample(figures.Network), onnxBytes, SmokeTested: false);
 
     private static string LatencyKey(LatencySettings s) =>
         $"cpu={MachineInfo.Processor}|ort={MachineInfo.RuntimeVersion}|threads={s.Threads}|batches={string.Join(",", s.BatchSizes)}|warmup={s.Warmup}|runs={s.Runs}|min={s.MinSeconds}";

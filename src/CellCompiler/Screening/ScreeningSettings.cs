@@ -10,10 +10,10 @@ public sealed record LatencyFingerprint(int Threads, IReadOnlyList<int> Batches,
 
 /// <summary>
 /// What a results file was made from: the inputs (paths and content hashes), the skeleton, seed,
-/// opset, budgets, training batch, latency settings, node limit and shard. Kept beside the results
+/// opset, budgets, training batch, latency settings, node and MAC limits and shard. Kept beside the results
 /// as FILE.settings (JSON, stable snake_case names), so that --resume never mixes records of two
-/// screenings in one file. The memory limit is left out: it follows the machine (a requeued task may
-/// land on another one) and only decides whether a too-large candidate is run.
+/// screenings in one file. The memory and time limits are left out: they follow the machine (a
+/// requeued task may land on another one) and only decide whether a too-large candidate is run.
 /// </summary>
 public sealed record ScreeningSettings
 {
@@ -28,6 +28,10 @@ public sealed record ScreeningSettings
     public int TrainBatch { get; init; }
     public LatencyFingerprint? Latency { get; init; }
     public int MaxRunNodes { get; init; }
+
+    /// <summary>`--max-run-macs` when not the default; written only then, so that settings files made before it existed compare as before.</summary>
+    [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingNull)]
+    public long? MaxRunMacs { get; init; }
     public bool RunOverBudget { get; init; }
     public required string Shard { get; init; }
 
@@ -55,6 +59,7 @@ public sealed record ScreeningSettings
             TrainBatch = options.TrainBatch,
             Latency = latency is null ? null : new LatencyFingerprint(latency.Threads, latency.BatchSizes, latency.Warmup, latency.Runs, latency.MinSeconds),
             MaxRunNodes = options.MaxRunNodes,
+            MaxRunMacs = options.MaxRunMacs == CheckOptions.DefaultMaxRunMacs ? null : options.MaxRunMacs,
             RunOverBudget = options.RunOverBudget,
             Shard = shard.ToString(),
             Static = options.Static,
