@@ -54,14 +54,15 @@ public sealed class SlurmTests(PackagedCellc cellc)
                 timeout: TimeSpan.FromMinutes(2));
             Assert.True(start.ExitCode == 0, $"Slurm did not start:\n{start.Stdout}\n{start.Stderr}");
 
-            // The README's script, adapted to this 2-CPU node: 3 tasks of 1 CPU instead of 16 of 4.
+            // The README's script, adapted to this 2-CPU node: 3 tasks of 1 CPU instead of 16 of 4, and
+            // 1 GB each instead of 8 (a node with less memory than a request refuses the job).
             // sbatch's options override the script's #SBATCH lines; --wait returns when every task has ended.
             var environment = new[]
             {
                 $"SLURM_CONF={conf}", PathWithTool, $"TMPDIR={job}",
             };
             var sbatch = ProcessRunner.Run("env",
-                [.. environment, "sbatch", "--wait", "--array=0-2", "--cpus-per-task=1", $"--chdir={job}", ArrayScript],
+                [.. environment, "sbatch", "--wait", "--array=0-2", "--cpus-per-task=1", "--mem=1G", $"--chdir={job}", ArrayScript],
                 timeout: TimeSpan.FromMinutes(5));
             Assert.True(sbatch.ExitCode == 0, $"sbatch --wait failed (exit {sbatch.ExitCode}):\n{sbatch.Stdout}\n{sbatch.Stderr}\n{TaskLogs(job, slurm)}");
             var jobId = sbatch.Stdout.Split(' ', StringSplitOptions.RemoveEmptyEntries).Last().Trim();
