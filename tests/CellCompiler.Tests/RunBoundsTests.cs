@@ -89,4 +89,25 @@ public sealed class RunBoundsTests
         Assert.Null(record.OnnxBytes);
         Assert.True(allocated < 200_000_000, $"allocated {allocated:N0} bytes"); // the model alone would be 1.7 GB
     }
+
+    [Fact]
+    public void Resume_compares_the_MAC_limit_but_not_the_machine_bound_time_limit()
+    {
+        using var folder = new TempFolder();
+        var output = folder.File("r.jsonl");
+        var first = ProcessRunner.Cellc(["check", H3, "--out", output, "--no-cache"], null, folder.Path);
+        Assert.Equal(0, first.ExitCode);
+        // A default limit is not written, so settings files made before the option existed compare as before.
+        Assert.False(JsonDocument.Parse(File.ReadAllText(output + ".settings")).RootElement.TryGetProperty("max_run_macs", out _));
+        var before = File.ReadAllText(output);
+
+        var otherMacs = ProcessRunner.Cellc(["check", H3, "--out", output, "--resume", "--no-cache", "--max-run-macs", "1G"], null, folder.Path);
+        Assert.Equal(2, otherMacs.ExitCode);
+        Assert.Contains("max_run_macs", otherMacs.Stderr);
+        Assert.Equal(before, File.ReadAllText(output));
+
+        var otherTime = ProcessRunner.Cellc(["check", H3, "--out", output, "--resume", "--no-cache", "--max-run-seconds", "30"], null, folder.Path);
+        Assert.Equal(0, otherTime.ExitCode);
+        Assert.Equal(before, File.ReadAllText(output));
+    }
 }
