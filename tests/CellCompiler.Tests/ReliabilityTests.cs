@@ -13,7 +13,7 @@ namespace CellCompiler.Tests;
 /// </summary>
 public sealed class ReliabilityTests
 {
-    private static string Population(int count, int firstSeed, Func<int, string>? id = null)
+    internal static string Population(int count, int firstSeed, Func<int, string>? id = null)
     {
         var lines = Enumerable.Range(firstSeed, count).Select(seed =>
         {
@@ -23,13 +23,13 @@ public sealed class ReliabilityTests
         return string.Join("\n", lines) + "\n";
     }
 
-    private static List<JsonElement> Records(string jsonLines) =>
+    internal static List<JsonElement> Records(string jsonLines) =>
         jsonLines.Split('\n', StringSplitOptions.RemoveEmptyEntries).Select(l => JsonDocument.Parse(l).RootElement.Clone()).ToList();
 
     private static string Comparable(JsonElement record) =>
         string.Join(";", record.EnumerateObject().Where(p => p.Name is not ("check_ms" or "cached")).Select(p => $"{p.Name}={p.Value.GetRawText()}"));
 
-    private static void SameRecords(IEnumerable<JsonElement> expected, IEnumerable<JsonElement> actual)
+    internal static void SameRecords(IEnumerable<JsonElement> expected, IEnumerable<JsonElement> actual)
     {
         var a = expected.Select(Comparable).Order(StringComparer.Ordinal).ToList();
         var b = actual.Select(Comparable).Order(StringComparer.Ordinal).ToList();

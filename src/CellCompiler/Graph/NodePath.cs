@@ -120,9 +120,14 @@ public readonly record struct NodePath(string Value)
         return segments;
     }
 
-    private static int? Number(string segment, string prefix) =>
-        segment.StartsWith(prefix, StringComparison.Ordinal) && segment.Length > prefix.Length && IsDigits(segment.AsSpan(prefix.Length))
-        && int.TryParse(segment.AsSpan(prefix.Length), NumberStyles.None, CultureInfo.InvariantCulture, out var n) ? n : null;
+    /// <summary>The number after <paramref name="prefix"/> as the builders write it: digits without a leading zero ("stage01" is not ours).</summary>
+    private static int? Number(string segment, string prefix)
+    {
+        if (!segment.StartsWith(prefix, StringComparison.Ordinal)) return null;
+        var digits = segment.AsSpan(prefix.Length);
+        if (!IsDigits(digits) || (digits.Length > 1 && digits[0] == '0')) return null;
+        return int.TryParse(digits, NumberStyles.None, CultureInfo.InvariantCulture, out var n) ? n : null;
+    }
 
     private static bool IsDigits(ReadOnlySpan<char> text)
     {

@@ -34,6 +34,14 @@ public static class CheckRecordJson
         return record;
     }
 
+    /// <summary>The record on one line of a results file, or why the line is not one (a line over the limit included).</summary>
+    public static CheckRecord? Read(JsonLine line, out string? problem)
+    {
+        if (!line.TooLong) return Read(line.Bytes.Span, out problem);
+        problem = $"the line is longer than the {MaxLineBytes:N0}-byte limit";
+        return null;
+    }
+
     /// <summary>Every record of a results file, line by line; lines that are not records go to <paramref name="malformed"/>.</summary>
     public static IEnumerable<CheckRecord> ReadFile(string path, Action<MalformedLine> malformed)
     {
@@ -50,14 +58,8 @@ public static class CheckRecordJson
     private static CheckRecord? FromLine(string origin, JsonLine line, Action<MalformedLine> malformed)
     {
         if (line.IsBlank) return null;
-        var place = new LinePlace(origin, line.Number);
-        if (line.TooLong)
-        {
-            malformed(new MalformedLine(place, $"the line is longer than the {MaxLineBytes:N0}-byte limit"));
-            return null;
-        }
-        var record = Read(line.Bytes.Span, out var problem);
-        if (record is null) malformed(new MalformedLine(place, problem!));
+        var record = Read(line, out var problem);
+        if (record is null) malformed(new MalformedLine(new LinePlace(origin, line.Number), problem!));
         return record;
     }
 

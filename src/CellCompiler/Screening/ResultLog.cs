@@ -47,10 +47,10 @@ public sealed class ResultLog : IDisposable
                     if (!line.Complete) break; // a write cut short: recomputed
                     end = line.End;
                     if (line.IsBlank) continue;
-                    var record = line.TooLong ? null : CheckRecordJson.Read(line.Bytes.Span, out _);
+                    var record = CheckRecordJson.Read(line, out var problem);
                     if (record is null)
                     {
-                        warn($"{path}:{line.Number} is not a check record; it is kept as it is and counts for no candidate");
+                        warn($"{path}:{line.Number} is not a check record ({problem}); it is kept as it is and counts for no candidate");
                         continue;
                     }
                     if (done.Add(record.Id)) previous(record);

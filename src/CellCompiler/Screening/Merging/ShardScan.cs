@@ -56,12 +56,11 @@ internal sealed class ShardScan(IReadOnlyList<string> files, Stream? sink)
         if (!line.Complete)
         {
             _partial++;
-            var cutId = line.TooLong ? null : CheckRecordJson.Read(line.Bytes.Span, out _)?.Id;
+            var cutId = CheckRecordJson.Read(line, out _)?.Id;
             Partial.Add(new PartialLine(place, line.RawLength, cutId));
             return;
         }
-        string? problem = $"the line is longer than the {CheckRecordJson.MaxLineBytes:N0}-byte limit";
-        var record = line.TooLong ? null : CheckRecordJson.Read(line.Bytes.Span, out problem);
+        var record = CheckRecordJson.Read(line, out var problem);
         if (record is null)
         {
             _malformed++;
