@@ -4,6 +4,7 @@ using CellCompiler.Inspection;
 using CellCompiler.OnnxFormat;
 using CellCompiler.Runtime;
 using CellCompiler.Tests.Support;
+using Google.Protobuf;
 
 namespace CellCompiler.Tests;
 
@@ -149,6 +150,34 @@ public sealed class BenchInputTests(Full224Model full224) : IClassFixture<Full22
         // The 64 MiB read went to the spool file: this thread allocated a small part of it, and the spool is gone.
         Assert.InRange(allocated, 0, limit / 16);
         Assert.Empty(Directory.GetFiles(Path.GetTempPath(), $".cellc-spool-{Environment.ProcessId}-*"));
+    }
+
+    [Fact]
+    public void A_model_onnx_runtime_refuses_is_one_escaped_message_without_the_runtimes_own_log()
+    {
+        using var folder = new TempFolder();
+        // The channel shuffle with its last Concat fed the whole shuffled tensor (8 + 4 channels where the
+        // next Conv takes 8), whose output is renamed to carry a terminal escape: it loads, and ONNX Runtime
+        // refuses it at the first run, naming the Conv after that output (and would log the name raw).
+        var model = InspectGraphs.ChannelShuffle();
+        model.Graph.Node.Single(n => n.Name == "cat").Input[0] = "u";
+        const string escaped = "c2out\u001b[2J";
+        foreach (var node in model.Graph.Node)
+        {
+            for (var i = 0; i < node.Input.Count; i++) if (node.Input[i] == "c2out") node.Input[i] = escaped;
+            for (var i = 0; i < node.Output.Count; i++) if (node.Output[i] == "c2out") node.Output[i] = escaped;
+        }
+        foreach (var info in model.Graph.ValueInfo.Concat(model.Graph.Output).Where(v => v.Name == "c2out")) info.Name = escaped;
+        var path = folder.File("refused.onnx");
+        File.WriteAllBytes(path, model.ToByteArray());
+
+        var cli = ProcessRunner.Cellc("bench", path, "--warmup", "0", "--runs", "1");
+        Assert.Equal(2, cli.ExitCode);
+        Assert.Equal("", cli.Stdout);
+        var line = Assert.Single(cli.Stderr.Split('\n', StringSplitOptions.RemoveEmptyEntries));
+        Assert.StartsWith($"cellc: error: {path}: cannot run the model on ONNX Runtime: ", line, StringComparison.Ordinal);
+        Assert.Contains("c2out\\e[2J", line, StringComparison.Ordinal);
+        Assert.DoesNotContain('\u001b', cli.Stderr);
     }
 
     private static string MakeFifo(TempFolder folder, string name)
