@@ -3,6 +3,7 @@ using System.Text.Json;
 using CellCompiler.Cli.Commands;
 using CellCompiler.Input;
 using CellCompiler.Inspection;
+using CellCompiler.Runtime;
 using CellCompiler.Tests.Support;
 using Google.Protobuf;
 using Xunit.Abstractions;
@@ -12,8 +13,10 @@ namespace CellCompiler.Tests;
 /// <summary>
 /// `cellc inspect` on corrupted, truncated and crafted ONNX files (issue 10): every file is either
 /// inspected (and printed safely) or refused as bad input naming the file; never a crash, a hang
-/// or unbounded memory. The mutated corpus runs a fixed-seed slice here; scripts/inspect-fuzz.sh
-/// runs a longer one, every case also through the real process (see the README).
+/// or unbounded memory. Every file inspect accepts then goes to `bench` (batch 1, one timed run)
+/// under the same standard: measured, or refused naming the file. The mutated corpus runs a
+/// fixed-seed slice here; scripts/inspect-fuzz.sh runs a longer one, every case also through the
+/// real process (see the README).
 /// </summary>
 public sealed class InspectFuzzTests(ITestOutputHelper output)
 {
@@ -36,10 +39,13 @@ public sealed class InspectFuzzTests(ITestOutputHelper output)
     {
         using var folder = new TempFolder();
         var failures = new List<string>();
-        var (inspected, refused) = (0, 0);
+        var (inspected, refused, benched, benchRefused) = (0, 0, 0, 0);
         var kinds = new HashSet<string>();
         var refusals = new Dictionary<string, int>(StringComparer.Ordinal);
-        var pending = new List<(string Description, string Path, Outcome Outcome)>();
+        var benchRefusals = new Dictionary<string, int>(StringComparer.Ordinal);
+        var pending = new List<(string Description, string Path, Outcome Outcome, Outcome? Bench)>();
+        var benchTime = Stopwatch.StartNew();
+        benchTime.Stop();
         for (var index = 0; index < Cases; index++)
         {
             var (description, bytes) = InspectMutations.Case(Seed, index);
@@ -47,37 +53,60 @@ public sealed class InspectFuzzTests(ITestOutputHelper output)
             var path = folder.File($"fuzz-{index}.onnx");
             File.WriteAllBytes(path, bytes);
             var outcome = InspectInProcess(path);
-            if (outcome.Result == Result.Inspected) inspected++;
+            Outcome? bench = null;
+            if (outcome.Result == Result.Accepted)
+            {
+                inspected++;
+                benchTime.Start();
+                bench = BenchInProcess(path);
+                benchTime.Stop();
+                if (bench.Result == Result.Accepted) benched++;
+                else if (bench.Result == Result.Refused) { benchRefused++; Tally(benchRefusals, bench, path); }
+                else failures.Add($"{description}: bench: {bench.Failure}");
+            }
             else if (outcome.Result == Result.Refused)
             {
                 refused++;
-                // Tallied by the message without the file name and numbers, to show what kinds of refusal the corpus reaches.
-                var kind = System.Text.RegularExpressions.Regex.Replace(outcome.Message[(path.Length + 2)..], "[0-9][0-9,]*", "N");
-                refusals[kind] = refusals.GetValueOrDefault(kind) + 1;
+                Tally(refusals, outcome, path);
             }
             else failures.Add($"{description}: {outcome.Failure}");
-            if (ThroughCli) pending.Add((description, path, outcome));
+            if (ThroughCli) pending.Add((description, path, outcome, bench));
             else File.Delete(path);
             if (pending.Count >= 64 || (index == Cases - 1 && pending.Count > 0))
             {
                 // The processes run a few at a time; each checks its exit code and message against the in-process outcome.
                 Parallel.ForEach(pending, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, p =>
                 {
-                    if (InspectThroughCli(p.Path, p.Outcome) is { } cliFailure)
+                    if (ThroughCliProcess(["inspect", p.Path], p.Path, p.Outcome) is { } cliFailure)
                         lock (failures) failures.Add($"{p.Description}: cellc process: {cliFailure}");
+                    if (p.Bench is { } b && ThroughCliProcess(["bench", p.Path, "--warmup", "0", "--runs", "1"], p.Path, b) is { } benchFailure)
+                        lock (failures) failures.Add($"{p.Description}: cellc bench process: {benchFailure}");
                     File.Delete(p.Path);
                 });
                 pending.Clear();
             }
         }
-        output.WriteLine($"seed {Seed}: {Cases} cases, {inspected} inspected, {refused} refused, {failures.Count} failed" +
+        output.WriteLine($"seed {Seed}: {Cases} cases, {inspected} inspected, {refused} refused; of the inspected, {benched} benched, " +
+                         $"{benchRefused} refused by bench ({benchTime.Elapsed.TotalSeconds:F1} s); {failures.Count} failed" +
                          (ThroughCli ? " (each also through the cellc process)" : ""));
         foreach (var (message, count) in refusals.OrderByDescending(kv => kv.Value).Take(12))
             output.WriteLine($"  {count,5} refused: {message}");
+        foreach (var (message, count) in benchRefusals.OrderByDescending(kv => kv.Value).Take(12))
+            output.WriteLine($"  {count,5} refused by bench: {message}");
         Assert.True(failures.Count == 0, $"{failures.Count} of {Cases} cases failed:\n" + string.Join("\n", failures.Take(20)));
         // Every mutation kind was drawn, and the corpus is neither all garbage nor all harmless.
         Assert.Equal(InspectMutations.Kinds.Order(StringComparer.Ordinal), kinds.Order(StringComparer.Ordinal));
         Assert.True(inspected >= Cases / 20 && refused >= Cases / 20, $"{inspected} inspected, {refused} refused");
+        // Bench both runs and refuses some of what inspect accepts.
+        Assert.True(benched >= Cases / 40 && benchRefused >= Cases / 400, $"{benched} benched, {benchRefused} refused by bench");
+    }
+
+    /// <summary>Tallied by the message without the file name and numbers, to show what kinds of refusal the corpus reaches.</summary>
+    private static void Tally(Dictionary<string, int> tally, Outcome outcome, string path)
+    {
+        var kind = System.Text.RegularExpressions.Regex.Replace(outcome.Message[(path.Length + 2)..], "[0-9][0-9,]*", "N");
+        if (kind.Length > 160) kind = kind[..160] + "...";
+        tally[kind] = tally.GetValueOrDefault(kind) + 1;
     }
 
     public static TheoryData<string> CraftedNames() => new(InspectMutations.Crafted().Keys);
@@ -224,7 +253,14 @@ public sealed class InspectFuzzTests(ITestOutputHelper output)
 
     // ---- running one case ---------------------------------------------------------------------
 
-    private enum Result { Inspected, Refused, Failed }
+    /// <summary>Accepted: inspected and printed, or benched.</summary>
+    private enum Result { Accepted, Refused, Failed }
+
+    /// <summary>Batch 1, no warm-up, one timed run (and the untimed first run that finds the output shapes).</summary>
+    private static readonly LatencySettings FuzzLatency = new(Threads: 1, Warmup: 0, Runs: 1, MinSeconds: 0, Batches: [1]);
+
+    /// <summary>What a bench may use: half of the process's 1 GiB heap cap, in-process as in the process, so both decide alike.</summary>
+    private const long BenchMemory = 1L << 29;
 
     private sealed record Outcome(Result Result, string Message)
     {
@@ -248,7 +284,7 @@ public sealed class InspectFuzzTests(ITestOutputHelper output)
                 using var json = new MemoryStream();
                 InspectionJson.Write(json, inspection, path);
                 JsonDocument.Parse(json.ToArray()).Dispose();
-                return new Outcome(Result.Inspected, "");
+                return new Outcome(Result.Accepted, "");
             }
             catch (InputException e)
             {
@@ -264,13 +300,45 @@ public sealed class InspectFuzzTests(ITestOutputHelper output)
         return run.Wait(HangGuard) ? run.Result : Outcome.Failed($"no answer within {HangGuard.TotalSeconds} s (a hang)");
     }
 
-    /// <summary>The real process with its managed heap capped at 1 GiB: exit 0 or 2 as in-process, a clean message, no crash.</summary>
-    private static string? InspectThroughCli(string path, Outcome inProcess)
+    /// <summary>
+    /// `bench` in-process through the path the CLI runs (<see cref="ModelBench"/>, then the latency
+    /// meter): measured, or refused as bad input naming the file; a case that does not finish is a hang.
+    /// </summary>
+    private static Outcome BenchInProcess(string path)
+    {
+        var run = Task.Run(() =>
+        {
+            try
+            {
+                var model = ModelBench.Read(path, FuzzLatency.BatchSizes, BenchMemory);
+                var report = ModelBench.OnRuntime(path, () => LatencyMeter.Measure(model.Bytes, FuzzLatency));
+                return report.Batches is [{ Batch: 1, Runs: 1 }]
+                    ? new Outcome(Result.Accepted, "")
+                    : Outcome.Failed($"measured {report.Batches.Count} batch sizes, expected batch 1 with one run");
+            }
+            catch (InputException e)
+            {
+                return e.Message.StartsWith(path + ": ", StringComparison.Ordinal)
+                    ? new Outcome(Result.Refused, e.Message)
+                    : Outcome.Failed($"the message does not start with the file name: {e.Message}");
+            }
+            catch (Exception e)
+            {
+                return Outcome.Failed($"{e.GetType().Name}: {e.Message}\n{e.StackTrace}");
+            }
+        });
+        return run.Wait(HangGuard) ? run.Result : Outcome.Failed($"no answer within {HangGuard.TotalSeconds} s (a hang)");
+    }
+
+    /// <summary>
+    /// The real process with its managed heap capped at 1 GiB: exit 0 or 2 as in-process, a clean
+    /// message, no crash (a native crash is a death by a signal, exit 128 + the signal's number).
+    /// </summary>
+    private static string? ThroughCliProcess(string[] args, string path, Outcome inProcess)
     {
         var info = new ProcessStartInfo("dotnet") { RedirectStandardOutput = true, RedirectStandardError = true, UseShellExecute = false };
         info.ArgumentList.Add(RepoPaths.CliDll);
-        info.ArgumentList.Add("inspect");
-        info.ArgumentList.Add(path);
+        foreach (var arg in args) info.ArgumentList.Add(arg);
         info.Environment["DOTNET_GCHeapHardLimit"] = "0x40000000";
         using var process = Process.Start(info)!;
         var stdout = process.StandardOutput.ReadToEndAsync();
@@ -281,7 +349,8 @@ public sealed class InspectFuzzTests(ITestOutputHelper output)
             return $"no answer within {HangGuard.TotalSeconds} s (a hang)";
         }
         process.WaitForExit();
-        var expected = inProcess.Result == Result.Inspected ? 0 : 2;
+        var expected = inProcess.Result == Result.Accepted ? 0 : 2;
+        if (process.ExitCode > 128) return $"killed by signal {process.ExitCode - 128} (exit {process.ExitCode}): {stderr.Result}";
         if (process.ExitCode != expected) return $"exit {process.ExitCode}, expected {expected}: {stderr.Result}";
         if (expected == 2 && !stderr.Result.StartsWith($"cellc: error: {path}: ", StringComparison.Ordinal)) return $"unclear message: {stderr.Result}";
         if (stdout.Result.Any(c => char.IsControl(c) && c != '\n')) return "stdout holds a control character";

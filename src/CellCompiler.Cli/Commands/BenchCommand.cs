@@ -5,7 +5,6 @@ using CellCompiler.Compilation;
 using CellCompiler.Input;
 using CellCompiler.Prediction;
 using CellCompiler.Runtime;
-using Microsoft.ML.OnnxRuntime;
 
 namespace CellCompiler.Cli.Commands;
 
@@ -54,8 +53,7 @@ public static class BenchCommand
                 : LatencyPredictor.Open(tablePath, TableConditions.Here(latency.Threads, settings.Resolve(parse).Opset),
                     message => Console.Error.WriteLine($"cellc: warning: {TerminalText.Safe(message)}"));
             var (bytes, ours, description, source) = Load(path, () => skeleton.Resolve(parse), () => settings.Resolve(parse), latency.BatchSizes);
-            BenchResult result;
-            try
+            var result = ModelBench.OnRuntime(path, () =>
             {
                 // Units the table lacks are measured first, so that the candidate's own measurement is not disturbed afterwards.
                 double? predicted = predictor is null || source is not { } s ? null
@@ -69,16 +67,12 @@ public static class BenchCommand
                         Math.Min(latency.Warmup, 10), Math.Min(latency.Runs, 200));
                     parts = LatencyBreakdown.FromProfile(profile, ours);
                 }
-                result = new BenchResult(path, description, report, parts)
+                return new BenchResult(path, description, report, parts)
                 {
                     PredictedMs = predicted,
                     LatencyTable = tablePath,
                 };
-            }
-            catch (Exception e) when (e is OnnxRuntimeException or NotSupportedException)
-            {
-                throw new InputException(path, "", $"cannot run the model on ONNX Runtime: {e.Message.ReplaceLineEndings(" ")}");
-            }
+            });
             if (parse.GetValue(json))
             {
                 using var stdout = StandardStreams.Output();
@@ -93,50 +87,24 @@ public static class BenchCommand
         return command;
     }
 
-    /// <summary>A model this tool made carries its genotype's hash: its node names are then hierarchical paths.</summary>
-    private static bool MadeByUs(byte[] bytes)
-    {
-        try { return OnnxFormat.ModelProto.Parser.ParseFrom(bytes).MetadataProps.Any(p => p.Key == "genotype_hash"); }
-        catch (Google.Protobuf.InvalidProtocolBufferException) { return false; }
-    }
-
     private static (byte[] Bytes, bool Ours, string Description, (Genotype Genotype, Skeleton Skeleton)? Source) Load(
         string path, Func<Skeleton> skeleton, Func<CompileOptions> options, IReadOnlyList<int> batches)
     {
-        if (!Path.GetExtension(path).Equals(".onnx", StringComparison.OrdinalIgnoreCase))
+        if (Path.GetExtension(path).Equals(".onnx", StringComparison.OrdinalIgnoreCase))
         {
-            var genotype = GenotypeReader.ReadFile(path);
-            var resolved = skeleton();
-            RequireRunnable(path, resolved.Input.Channels * (long)resolved.Input.Height * resolved.Input.Width, batches, null);
-            CompiledModel model;
-            try { model = Compiler.Compile(genotype, resolved, options()); }
-            catch (Graph.CompileException e) { throw new InputException(path, "", e.Message); }
-            catch (Lowering.DeadCellException e) { throw e.In(path); }
-            RequireRunnable(path, 0, batches, model.Figures);
-            return (model.OnnxBytes, true, $"genotype {genotype.Name} on {CompileReport.DescribeSkeleton(resolved)}", (genotype, resolved));
+            var model = ModelBench.Read(path, batches);
+            return (model.Bytes, model.MadeByUs, "ONNX model", null);
         }
-        var bytes = BoundedFile.ReadAll(path, Input.Limits.MaxModelBytes, "an ONNX model (external data is not supported)");
-        return (bytes, MadeByUs(bytes), "ONNX model", null);
-    }
-
-    /// <summary>
-    /// Refuses, before anything is allocated, a batch whose input cannot be one array, or whose run
-    /// would need more than half the memory available (estimated: weights three times, and the peak
-    /// activations of the batch twice over).
-    /// </summary>
-    private static void RequireRunnable(string path, long inputPerSample, IReadOnlyList<int> batches, Figures.NetworkFigures? figures)
-    {
-        var batch = batches.Max();
-        if (inputPerSample > 0 && (Int128)inputPerSample * batch > Array.MaxLength)
-            throw new InputException(path, "--batch",
-                $"batch {batch} of {inputPerSample:N0} input values each needs {(Int128)inputPerSample * batch:N0} values in one tensor, more than the {Array.MaxLength:N0} allowed; use a smaller --batch");
-        if (figures is null) return;
-        var needed = (Int128)figures.WeightBytes * 3 + (Int128)figures.PeakActivationBytes * batch * 2;
-        var available = Screening.MemoryGuard.DefaultCapacity;
-        if (needed > available)
-            throw new InputException(path, "--batch",
-                $"batch {batch} needs about {Formatting.Bytes((long)Int128.Min(needed, long.MaxValue))} of memory, more than the {Formatting.Bytes(available)} " +
-                "(half of what is available) a measurement may use; use a smaller --batch");
+        var genotype = GenotypeReader.ReadFile(path);
+        var resolved = skeleton();
+        // The input is checked before compiling, the whole network's memory after.
+        RunNeeds.OfInput(resolved.Input).Require(path, batches);
+        CompiledModel compiled;
+        try { compiled = Compiler.Compile(genotype, resolved, options()); }
+        catch (Graph.CompileException e) { throw new InputException(path, "", e.Message); }
+        catch (Lowering.DeadCellException e) { throw e.In(path); }
+        RunNeeds.OfNetwork(resolved.Input, compiled.Figures).Require(path, batches);
+        return (compiled.OnnxBytes, true, $"genotype {genotype.Name} on {CompileReport.DescribeSkeleton(resolved)}", (genotype, resolved));
     }
 }
 

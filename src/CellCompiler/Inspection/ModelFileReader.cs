@@ -1,4 +1,5 @@
 using CellCompiler.Input;
+using CellCompiler.Io;
 using CellCompiler.OnnxFormat;
 using Google.Protobuf;
 
@@ -24,6 +25,27 @@ internal static class ModelFileReader
     /// <summary>Reads with a size limit of <paramref name="limit"/> bytes (the tests use a small one to show the bound).</summary>
     internal static (ModelProto Model, long Bytes) Read(string path, long limit)
     {
+        var (model, length, _) = ReadCore(path, limit, keepBytes: false);
+        return (model, length);
+    }
+
+    /// <summary>
+    /// The model and its bytes exactly as read, for ONNX Runtime, which must get the original: parsing
+    /// drops what our schema does not declare. A regular file is read again once it has parsed as a
+    /// model; a pipe's or a device's bytes go to a <see cref="SpoolFile"/> while they are parsed, so
+    /// that no input costs memory before it is known to be a model.
+    /// </summary>
+    public static (ModelProto Model, byte[] Bytes) ReadWithBytes(string path) => ReadWithBytes(path, Limits.MaxModelBytes);
+
+    internal static (ModelProto Model, byte[] Bytes) ReadWithBytes(string path, long limit)
+    {
+        // One array holds the bytes: a few bytes under 2 GiB at most.
+        var (model, _, bytes) = ReadCore(path, Math.Min(limit, Array.MaxLength), keepBytes: true);
+        return (model, bytes!);
+    }
+
+    private static (ModelProto Model, long Bytes, byte[]? Kept) ReadCore(string path, long limit, bool keepBytes)
+    {
         if (Directory.Exists(path)) throw new InputException(path, "", "is a folder, not an ONNX model file");
         FileStream file;
         try
@@ -43,17 +65,50 @@ internal static class ModelFileReader
         {
             // A regular file over the limit is refused before reading a byte; pipes and devices are bounded while reading.
             if (file.CanSeek && file.Length > limit) throw TooLarge(path, file.Length, limit);
-            var bounded = new BoundedStream(file, limit);
+            // A regular file is read again once parsed; a device such as /dev/zero can seek but states no length: spooled like a pipe.
+            var rereadable = file.CanSeek && file.Length > 0;
+            using var copy = keepBytes && !rereadable ? Spool(path) : null;
+            var bounded = new BoundedStream(file, limit, copy);
             ModelProto model;
             try { model = Parser.ParseFrom(bounded); }
             catch (InvalidProtocolBufferException e) { throw NotProtobuf(path, e, bounded.Head, bounded.Position); }
             catch (LimitReachedException) { throw TooLarge(path, null, limit); }
+            catch (CopyFailedException e)
+            {
+                throw new InputException(path, "", $"cannot keep a copy of it in the temporary folder while reading: {e.InnerException!.Message}");
+            }
             catch (Exception e) when (e is IOException or UnauthorizedAccessException)
             {
                 throw new InputException(path, "", $"cannot read the file: {e.Message}");
             }
             Validate(model, path, bounded.Head, bounded.Position);
-            return (model, bounded.Position);
+            return (model, bounded.Position, keepBytes ? ReadBack(rereadable ? file : copy!, bounded.Position, path) : null);
+        }
+    }
+
+    private static FileStream Spool(string path)
+    {
+        try { return SpoolFile.Create(); }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            throw new InputException(path, "", $"cannot keep a copy of it in the temporary folder while reading: {e.Message}");
+        }
+    }
+
+    /// <summary>The <paramref name="length"/> bytes that parsed as the model, from the start of the file or of its spooled copy.</summary>
+    private static byte[] ReadBack(Stream stream, long length, string path)
+    {
+        try
+        {
+            var bytes = GC.AllocateUninitializedArray<byte>((int)length);
+            stream.Position = 0;
+            stream.ReadExactly(bytes);
+            return bytes;
+        }
+        catch (EndOfStreamException) { throw new InputException(path, "", "the file became shorter while it was read"); }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            throw new InputException(path, "", $"cannot read the file again: {e.Message}");
         }
     }
 
@@ -69,7 +124,7 @@ internal static class ModelFileReader
 
     private static InputException TooLarge(string path, long? length, long limit) => new(path, "",
         (length is { } n ? $"the file is {n:N0} bytes" : $"the input goes on past {limit:N0} bytes, where reading stopped") +
-        (limit == Limits.MaxModelBytes
+        (limit >= Array.MaxLength
             ? "; models over 2 GiB are not supported (a single protobuf message holds at most 2 GiB; larger models keep their weights in external data files)"
             : $"; the limit is {limit:N0} bytes"));
 
@@ -106,8 +161,14 @@ internal static class ModelFileReader
 
     private sealed class LimitReachedException : Exception;
 
-    /// <summary>A read-only stream that counts what it passes on, keeps the first bytes, and stops past a limit.</summary>
-    private sealed class BoundedStream(Stream inner, long limit) : Stream
+    /// <summary>Writing the copy failed (a full disk): told apart from a failure to read the input.</summary>
+    private sealed class CopyFailedException(Exception inner) : Exception(inner.Message, inner);
+
+    /// <summary>
+    /// A read-only stream that counts what it passes on, keeps the first bytes, and stops past a limit;
+    /// with a <paramref name="copy"/>, everything it passes on is also written there.
+    /// </summary>
+    private sealed class BoundedStream(Stream inner, long limit, Stream? copy) : Stream
     {
         private readonly byte[] _head = new byte[64];
         private long _position;
@@ -127,6 +188,8 @@ internal static class ModelFileReader
                 buffer[..Math.Min(read, (int)(_head.Length - _position))].CopyTo(_head.AsSpan((int)_position));
             _position += read;
             if (_position > limit) throw new LimitReachedException();
+            try { copy?.Write(buffer[..read]); }
+            catch (Exception e) when (e is IOException or UnauthorizedAccessException) { throw new CopyFailedException(e); }
             return read;
         }
 

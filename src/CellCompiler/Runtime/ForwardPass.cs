@@ -33,7 +33,7 @@ public sealed class ForwardPass : IDisposable
             IntraOpNumThreads = intraOpThreads,
             InterOpNumThreads = 1,
             GraphOptimizationLevel = optimization,
-            LogSeverityLevel = OrtLoggingLevel.ORT_LOGGING_LEVEL_ERROR,
+            LogSeverityLevel = RuntimeLog.Level,
         };
         _session = new InferenceSession(model, options);
     }

@@ -20,7 +20,7 @@ public static class LatencyMeter
             InterOpNumThreads = 1,
             ExecutionMode = ExecutionMode.ORT_SEQUENTIAL,
             GraphOptimizationLevel = GraphOptimizationLevel.ORT_ENABLE_ALL,
-            LogSeverityLevel = OrtLoggingLevel.ORT_LOGGING_LEVEL_ERROR,
+            LogSeverityLevel = RuntimeLog.Level,
         };
         // Spinning threads would burn the cores of neighbouring work between runs.
         options.AddSessionConfigEntry("session.intra_op.allow_spinning", threads > 1 ? "1" : "0");

@@ -35,9 +35,6 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     /// <summary>Bytes a compile holds per primitive op of the expanded network (graph, shapes, names), measured with headroom.</summary>
     private const long CompileBytesPerOp = 16_000;
 
-    /// <summary>ONNX Runtime's own bytes per node of a loaded session (kernels, shapes, names), measured with headroom.</summary>
-    private const long RuntimeBytesPerNode = 40_000;
-
     private readonly ExclusiveGate _gate = gate ?? ExclusiveGate.None;
     private readonly MemoryGuard _memory = memory ?? MemoryGuard.Unbounded;
     private readonly LatencyPredictor? _predictor = predictor ?? OpenPredictor(options);
@@ -275,15 +272,11 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         return TooLargeToRun(compiled.Figures!) is { } tooLarge ? notRun with { FailureReason = tooLarge } : null;
     }
 
-    /// <summary>
-    /// Memory to run at batch 2, estimated: the model bytes three times (ours, the runtime's copy and
-    /// its prepared weights; a 2.14 GB model peaked at 6.3 GB), two samples' activations twice over, and
-    /// the runtime's own structures per node.
-    /// </summary>
+    /// <summary>Memory to run at batch 2 (the smoke test's), estimated by <see cref="RunNeeds.Estimate"/>.</summary>
     public static long RunEstimate(NetworkFigures figures)
     {
         var nodes = figures.OpCounts.Values.Sum(n => (long)n);
-        var needed = (Int128)figures.WeightBytes * 3 + (Int128)figures.PeakActivationBytes * 4 + (Int128)nodes * RuntimeBytesPerNode;
+        var needed = RunNeeds.Estimate(figures.WeightBytes, (Int128)figures.PeakActivationBytes * 2, nodes);
         return needed > long.MaxValue ? long.MaxValue : (long)needed;
     }
 

@@ -19,6 +19,9 @@ public sealed record ScreeningSettings
 {
     public const string FormatTag = "cellc-check-settings/1";
 
+    /// <summary>A settings file is a few kB; far more is not one.</summary>
+    public const int MaxBytes = 16 << 20;
+
     public string Format { get; init; } = FormatTag;
     public required IReadOnlyList<InputFingerprint> Inputs { get; init; }
     public required JsonElement Skeleton { get; init; }
@@ -85,14 +88,11 @@ public sealed record ScreeningSettings
         if (!File.Exists(path))
             throw new InputException(resultsPath, "",
                 $"has no settings file beside it ({path}), so what made it cannot be checked; start again without --resume");
+        // Bounded while reading: a settings file replaced by a device or a pipe is refused at the limit.
+        var bytes = BoundedFile.ReadAll(path, MaxBytes, "the settings of an earlier run");
         JsonObject? before;
-        try
-        {
-            var bytes = File.ReadAllBytes(path);
-            if (bytes.Length > 16 << 20) throw new JsonException("too large");
-            before = JsonNode.Parse(bytes) as JsonObject;
-        }
-        catch (Exception e) when (e is JsonException or IOException or UnauthorizedAccessException)
+        try { before = JsonNode.Parse(bytes) as JsonObject; }
+        catch (JsonException e)
         {
             throw new InputException(path, "", $"cannot read the settings of the earlier run ({e.Message}); start again without --resume");
         }

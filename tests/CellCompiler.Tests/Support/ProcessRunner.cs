@@ -8,7 +8,7 @@ public sealed record ProcessResult(int ExitCode, string Stdout, string Stderr);
 public static class ProcessRunner
 {
     public static ProcessResult Run(string fileName, IEnumerable<string> args, string? stdin = null,
-        string? workingDirectory = null, TimeSpan? timeout = null)
+        string? workingDirectory = null, TimeSpan? timeout = null, IReadOnlyDictionary<string, string>? environment = null)
     {
         var info = new ProcessStartInfo(fileName)
         {
@@ -19,6 +19,7 @@ public static class ProcessRunner
             WorkingDirectory = workingDirectory ?? Environment.CurrentDirectory,
         };
         foreach (var arg in args) info.ArgumentList.Add(arg);
+        foreach (var (name, value) in environment ?? new Dictionary<string, string>()) info.Environment[name] = value;
         using var process = Process.Start(info)!;
         var stdout = process.StandardOutput.ReadToEndAsync();
         var stderr = process.StandardError.ReadToEndAsync();
