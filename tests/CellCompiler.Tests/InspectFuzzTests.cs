@@ -170,30 +170,14 @@ public sealed class InspectFuzzTests(ITestOutputHelper output)
     public async Task Reading_a_pipe_stops_at_the_size_limit_while_reading()
     {
         using var folder = new TempFolder();
-        var fifo = folder.File("endless.onnx");
-        Assert.Equal(0, ProcessRunner.Run("mkfifo", [fifo]).ExitCode);
-        // An endless stream that is valid protobuf all along: field 4 as a varint again and again (unknown, skipped).
-        long written = 0;
-        var writer = Task.Run(() =>
-        {
-            var chunk = Enumerable.Repeat(new byte[] { 0x20, 0x0A }, 32 * 1024).SelectMany(b => b).ToArray();
-            try
-            {
-                using var stream = new FileStream(fifo, FileMode.Open, FileAccess.Write);
-                while (written < 1L << 30)
-                {
-                    stream.Write(chunk);
-                    written += chunk.Length;
-                }
-            }
-            catch (IOException) { }   // the reader closed the pipe: what we want
-        });
+        var pipe = new EndlessProtobufPipe(folder, "endless.onnx");
+        var fifo = pipe.Path;
         const long limit = 4 << 20;
         var e = Assert.Throws<InputException>(() => ModelFileReader.Read(fifo, limit));
         Assert.Equal($"{fifo}: the input goes on past 4,194,304 bytes, where reading stopped; the limit is 4,194,304 bytes", e.Message);
-        await writer.WaitAsync(HangGuard);   // a TimeoutException if the writer never saw the pipe close
+        await pipe.Writer.WaitAsync(HangGuard);   // a TimeoutException if the writer never saw the pipe close
         // The reader stopped at its limit: the writer got no further than the limit and the pipe's buffer.
-        Assert.InRange(written, limit, limit + (4 << 20));
+        Assert.InRange(pipe.Written, limit, limit + (4 << 20));
     }
 
     public static TheoryData<string> HostileFiles() => new(["dev-zero", "empty", "json", "truncated", "huge-length", "nested-120", "folder", "missing"]);
@@ -270,51 +254,43 @@ public sealed class InspectFuzzTests(ITestOutputHelper output)
     }
 
     /// <summary>The library and both printers, in-process; a case that does not finish is a hang.</summary>
-    private static Outcome InspectInProcess(string path)
+    private static Outcome InspectInProcess(string path) => Classified(path, () =>
     {
-        var run = Task.Run(() =>
-        {
-            try
-            {
-                var inspection = ModelInspector.InspectFile(path);
-                var text = new StringWriter();
-                InspectCommand.WriteText(text, inspection, path);
-                if (text.ToString().Any(c => (char.IsControl(c) && c != '\n') || c is >= '\u202A' and <= '\u202E'))
-                    return Outcome.Failed("the text output holds a control character");
-                using var json = new MemoryStream();
-                InspectionJson.Write(json, inspection, path);
-                JsonDocument.Parse(json.ToArray()).Dispose();
-                return new Outcome(Result.Accepted, "");
-            }
-            catch (InputException e)
-            {
-                return e.Message.StartsWith(path + ": ", StringComparison.Ordinal)
-                    ? new Outcome(Result.Refused, e.Message)
-                    : Outcome.Failed($"the message does not start with the file name: {e.Message}");
-            }
-            catch (Exception e)
-            {
-                return Outcome.Failed($"{e.GetType().Name}: {e.Message}\n{e.StackTrace}");
-            }
-        });
-        return run.Wait(HangGuard) ? run.Result : Outcome.Failed($"no answer within {HangGuard.TotalSeconds} s (a hang)");
-    }
+        var inspection = ModelInspector.InspectFile(path);
+        var text = new StringWriter();
+        InspectCommand.WriteText(text, inspection, path);
+        if (text.ToString().Any(c => (char.IsControl(c) && c != '\n') || c is >= '\u202A' and <= '\u202E'))
+            return Outcome.Failed("the text output holds a control character");
+        using var json = new MemoryStream();
+        InspectionJson.Write(json, inspection, path);
+        JsonDocument.Parse(json.ToArray()).Dispose();
+        return new Outcome(Result.Accepted, "");
+    });
 
     /// <summary>
     /// `bench` in-process through the path the CLI runs (<see cref="ModelBench"/>, then the latency
     /// meter): measured, or refused as bad input naming the file; a case that does not finish is a hang.
     /// </summary>
-    private static Outcome BenchInProcess(string path)
+    private static Outcome BenchInProcess(string path) => Classified(path, () =>
+    {
+        var model = ModelBench.Read(path, FuzzLatency.BatchSizes, BenchMemory);
+        var report = ModelBench.OnRuntime(path, () => LatencyMeter.Measure(model.Bytes, FuzzLatency));
+        return report.Batches is [{ Batch: 1, Runs: 1 }]
+            ? new Outcome(Result.Accepted, "")
+            : Outcome.Failed($"measured {report.Batches.Count} batch sizes, expected batch 1 with one run");
+    });
+
+    /// <summary>
+    /// One case in-process: its own outcome, a refusal when it is bad input naming the file, a failure
+    /// for any other exception or a wrongly named message, and a hang when it does not finish.
+    /// </summary>
+    private static Outcome Classified(string path, Func<Outcome> work)
     {
         var run = Task.Run(() =>
         {
             try
             {
-                var model = ModelBench.Read(path, FuzzLatency.BatchSizes, BenchMemory);
-                var report = ModelBench.OnRuntime(path, () => LatencyMeter.Measure(model.Bytes, FuzzLatency));
-                return report.Batches is [{ Batch: 1, Runs: 1 }]
-                    ? new Outcome(Result.Accepted, "")
-                    : Outcome.Failed($"measured {report.Batches.Count} batch sizes, expected batch 1 with one run");
+                return work();
             }
             catch (InputException e)
             {

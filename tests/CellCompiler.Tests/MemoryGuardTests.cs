@@ -53,9 +53,10 @@ public sealed class MemoryGuardTests
     {
         var guard = new MemoryGuard(1000);
         var first = guard.Reserve(500)!;
-        var large = Task.Run(() => guard.Reserve(800));
-        Assert.True(await StillWaiting(large)); // queued behind the 500
-        var small = Task.Run(() => guard.Reserve(100)); // would fit now, but came later
+        var large = OnItsOwnThread(() => guard.Reserve(800));
+        await Queued(guard, 1); // the 800 waits behind the 500
+        var small = OnItsOwnThread(() => guard.Reserve(100)); // would fit now, but came later
+        await Queued(guard, 2);
         Assert.True(await StillWaiting(small));
         first.Dispose();
         using var largeGranted = await Granted(large);
@@ -63,6 +64,21 @@ public sealed class MemoryGuardTests
         using var smallGranted = await Granted(small);
         Assert.NotNull(largeGranted);
         Assert.NotNull(smallGranted);
+    }
+
+    /// <summary>A dedicated thread, so that a busy thread pool cannot reorder the requests.</summary>
+    private static Task<T> OnItsOwnThread<T>(Func<T> work) =>
+        Task.Factory.StartNew(work, CancellationToken.None, TaskCreationOptions.LongRunning, TaskScheduler.Default);
+
+    /// <summary>Waits until this many requests are queued (a guard that grants at once never gets there).</summary>
+    private static async Task Queued(MemoryGuard guard, long count)
+    {
+        var clock = System.Diagnostics.Stopwatch.StartNew();
+        while (guard.Waiting < count)
+        {
+            Assert.True(clock.Elapsed < TimeSpan.FromSeconds(30), $"{guard.Waiting} of {count} requests queued");
+            await Task.Delay(5);
+        }
     }
 
     [Fact]

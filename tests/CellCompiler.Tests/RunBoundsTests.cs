@@ -28,7 +28,7 @@ public sealed class RunBoundsTests
         Assert.Equal("over_budget", record.GetProperty("status").GetString());
         Assert.Equal(CandidateChecker.TooLargeKind, record.GetProperty("reason_kind").GetString());
         Assert.Contains(option, record.GetProperty("reason").GetString());
-        Assert.False(record.GetProperty("smoke_tested").GetBoolean());
+        Assert.NotEqual(JsonValueKind.True, record.GetProperty("smoke_tested").ValueKind); // false, or null when not even compiled
     }
 
     [Fact]
@@ -55,7 +55,8 @@ public sealed class RunBoundsTests
         // 72 G MACs per sample, three samples: no single CPU core finishes them in 1 s, so only the
         // runtime's stop flag can end the run that soon (unbounded it takes seconds to minutes).
         var clock = Stopwatch.StartNew();
-        var record = Check("--input", "3x1024x1024", "--max-run-seconds", "1");
+        // The memory limit is set so that a small machine does not refuse it for memory first.
+        var record = Check("--input", "3x1024x1024", "--max-run-seconds", "1", "--memory-limit-gb", "64");
         TooLarge(record, "--max-run-seconds");
         Assert.Contains("took longer than 1", record.GetProperty("reason").GetString());
         Assert.True(clock.Elapsed < TimeSpan.FromSeconds(60), $"took {clock.Elapsed}"); // a hang guard, not a speed target
@@ -110,4 +111,48 @@ public sealed class RunBoundsTests
         Assert.Equal(0, otherTime.ExitCode);
         Assert.Equal(before, File.ReadAllText(output));
     }
+
+    /// <summary>Many identity edges: a compile holds much structure for few ONNX nodes and weights.</summary>
+    private static string IdentityHeavy() =>
+        "{\"format\":\"genotype/1\",\"name\":\"mirrors\",\"levels\":[{\"nodes\":64,\"motifs\":{\"cell\":{\"edges\":[" +
+        string.Join(",", from j in Enumerable.Range(1, 63) from i in Enumerable.Range(0, j)
+                         select $"[{i},{j},\"{(i == 0 && j == 63 ? "conv1x1" : "identity")}\"]") +
+        "]}}}]}";
+
+    [Theory]
+    [InlineData("0.1", "not compiled to ONNX")] // the structure fits, the weights beside it do not
+    [InlineData("0.08", "not compiled: ")]      // not even the structure fits
+    public void A_compile_that_does_not_fit_is_reported_alike_with_and_without_the_cache(string limitGb, string reason)
+    {
+        using var folder = new TempFolder();
+        var genotype = folder.Write("g.json", IdentityHeavy());
+        var cache = folder.File("cache.sqlite");
+        string[] check = ["check", genotype, "--json", "--channels", "8,16,32"];
+        var filled = ProcessRunner.Cellc([.. check, "--cache", cache], null, folder.Path);
+        Assert.Equal("ok", JsonDocument.Parse(filled.Stdout).RootElement.GetProperty("status").GetString());
+
+        var fresh = ProcessRunner.Cellc([.. check, "--no-cache", "--memory-limit-gb", limitGb], null, folder.Path);
+        var cached = ProcessRunner.Cellc([.. check, "--cache", cache, "--memory-limit-gb", limitGb], null, folder.Path);
+        var record = JsonDocument.Parse(fresh.Stdout).RootElement;
+        TooLarge(record, "--memory-limit-gb");
+        Assert.StartsWith(reason, record.GetProperty("reason").GetString());
+        Assert.Equal(fresh.ExitCode, cached.ExitCode);
+        Assert.Equal(Comparable(record), Comparable(JsonDocument.Parse(cached.Stdout).RootElement));
+    }
+
+    [Fact]
+    public void A_network_over_the_op_limit_is_invalid_whatever_the_memory()
+    {
+        using var folder = new TempFolder();
+        var genotype = folder.Write("g.json", HostileGenotypes.OverTheNetworkOpLimit());
+        foreach (var limit in new[] { "0.001", "1000" })
+        {
+            var result = ProcessRunner.Cellc(["check", genotype, "--json", "--no-cache", "--memory-limit-gb", limit], null, folder.Path);
+            Assert.Equal(2, result.ExitCode);
+            Assert.Contains("exceeds the limit of 100,000 primitive ops", result.Stdout + result.Stderr);
+        }
+    }
+
+    private static string Comparable(JsonElement record) =>
+        string.Join(";", record.EnumerateObject().Where(p => p.Name is not ("check_ms" or "cached")).Select(p => $"{p.Name}={p.Value.GetRawText()}"));
 }

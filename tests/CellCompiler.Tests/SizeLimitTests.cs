@@ -73,7 +73,7 @@ public sealed class SizeLimitTests
         {
             "bench model" or "inspect" => "not an ONNX model: the file is not a valid ONNX protobuf",
             "compile --skeleton" or "scale --to" => "it holds more than 1,048,576 bytes (1 MiB), the most a skeleton file may have (reading stopped)",
-            "check --resume settings" => "it holds more than 16,777,216 bytes (16 MiB), the most the settings of an earlier run may have (reading stopped)",
+            "check --resume settings" => "it holds more than 16,777,216 bytes (16 MiB), the most the settings of an earlier run may have (reading stopped); start again without --resume",
             _ => "it holds more than 1,048,576 bytes (1 MiB), the most a genotype file may have (reading stopped)",
         };
         Assert.Contains(expected, result.Stderr, StringComparison.Ordinal);

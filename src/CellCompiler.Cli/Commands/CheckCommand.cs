@@ -44,7 +44,7 @@ public static class CheckCommand
         var maxRunSeconds = new Option<double?>("--max-run-seconds")
         {
             HelpName = "X",
-            Description = $"Stop a candidate's run on ONNX Runtime after X seconds (default {CheckOptions.DefaultMaxRunSeconds:0}) and report it as over_budget (too large to run here).",
+            Description = $"Stop a candidate's smoke test on ONNX Runtime after X seconds, its session included (default {CheckOptions.DefaultMaxRunSeconds:0}; 1e6 or more: no limit), and report it as over_budget (too large to run here).",
             CustomParser = HumanNumber.PositiveAmount("s"),
         };
         var memoryLimit = new Option<double?>("--memory-limit-gb")

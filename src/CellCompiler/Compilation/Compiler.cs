@@ -83,7 +83,8 @@ public static class Compiler
     }
 
     /// <summary>The contract's op limit covers the whole expanded network, so the skeleton's cell count multiplies the cell.</summary>
-    private static void CheckExpandedSize(Genotype genotype, Skeleton skeleton)
+    /// <exception cref="CompileException">the expanded network is over the limit</exception>
+    public static void CheckExpandedSize(Genotype genotype, Skeleton skeleton)
     {
         var totalCells = skeleton.Stages.Sum(s => (long)s.Cells);
         if (ExpansionSize.CellPrimitiveOps(genotype) * totalCells > Limits.MaxExpandedPrimitiveOps)

@@ -204,7 +204,8 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
                 var own = EvaluateStatic(genotype, hashes);
                 found = own.Figures is null ? own : found with { Figures = own.Figures, ActivationBytesPerSample = own.ActivationBytesPerSample, OnnxBytes = null };
             }
-            var result = found ?? EvaluateStatic(genotype, hashes);
+            // A cached network still needs its structure to fit here, as a fresh static compile would.
+            var result = (found is null ? null : CompileRefusal(genotype, null)) ?? found ?? EvaluateStatic(genotype, hashes);
             return new Prepared(hashes, warnings, notes, result, found is not null, null, null);
         }
         var spelling = SpellingOf(genotype);
@@ -225,7 +226,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         if (found is not null)
         {
             // Budgets and limits are judged afresh on this spelling's figures, exactly as a run without the cache would.
-            if (NotRun(found, predicted) is { } notRun) evaluation = notRun;
+            if (NotRun(genotype, found, predicted) is { } notRun) evaluation = notRun;
             else if (found.SmokeTested) evaluation = found;
         }
         var cached = evaluation is not null;
@@ -246,7 +247,8 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
             {
                 var (again, compiled) = Compile(genotype, hashes);
                 if (compiled is not null) model = compiled.OnnxBytes;
-                else (evaluation, latencyKey) = (again with { Spelling = spelling }, null); // a cached verdict whose model does not fit in this run
+                // NotRun above refuses a cached network whose compile does not fit, so this is a safeguard.
+                else (evaluation, latencyKey) = (again with { Spelling = spelling }, null);
             }
         }
         return new Prepared(hashes, warnings, notes, evaluation, cached, model, latencyKey);
@@ -264,8 +266,12 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     /// no run, the predicted latency's included (unless --run-over-budget), or too large for this
     /// machine. Null when it runs.
     /// </summary>
-    private Evaluation? NotRun(Evaluation compiled, double? predicted)
+    private Evaluation? NotRun(Genotype genotype, Evaluation compiled, double? predicted)
     {
+        // A cached verdict from a run with more memory: judged as a compile here would be, so that the
+        // record is the same with or without the cache.
+        if (CompileRefusal(genotype, compiled.Figures) is { } refused)
+            return refused.Failure is not null ? refused : compiled with { Failure = null, FailureReason = refused.FailureReason, FailureKind = null, SmokeTested = false, OnnxBytes = null };
         var notRun = compiled with { Failure = null, FailureReason = null, FailureKind = null, SmokeTested = false };
         if (!options.RunOverBudget && Judge(compiled.Figures!, TrainMemory(compiled), null, options, predicted).Item1 != CheckStatus.Ok)
             return notRun;
@@ -281,11 +287,10 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     }
 
     /// <summary>Memory a compile holds, estimated before compiling from the expanded network's op count.</summary>
-    private long CompileEstimate(Genotype genotype)
-    {
-        var cells = options.Skeleton.Stages.Sum(s => (long)s.Cells);
-        return Math.Min(ExpansionSize.CellPrimitiveOps(genotype) * cells, Limits.MaxExpandedPrimitiveOps + 1) * CompileBytesPerOp;
-    }
+    private long CompileEstimate(Genotype genotype) => Math.Min(ExpandedOps(genotype), Limits.MaxExpandedPrimitiveOps + 1) * CompileBytesPerOp;
+
+    /// <summary>Primitive ops of the whole expanded network (the op limit's count; may exceed it).</summary>
+    private long ExpandedOps(Genotype genotype) => ExpansionSize.CellPrimitiveOps(genotype) * options.Skeleton.Stages.Sum(s => (long)s.Cells);
 
     /// <summary>Why a compiled network is not run here: too many nodes or MACs, or more memory than this run may use.</summary>
     private string? TooLargeToRun(NetworkFigures figures)
@@ -310,7 +315,7 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         if (model is null) return (compiled, null);
         // Budgets that need no run are judged first: a candidate already over one is not run at all
         // unless the user asks for it.
-        if (NotRun(compiled, predicted) is { } notRun) return (notRun, model.OnnxBytes);
+        if (NotRun(genotype, compiled, predicted) is { } notRun) return (notRun, model.OnnxBytes);
         SmokeVerdict verdict;
         using (_memory.Reserve(RunEstimate(model.Figures)))
             verdict = SmokeTest.Run(model.OnnxBytes, model.InputShape.Dims, model.OutputShape.Dims, options.Compile.Seed,
@@ -339,20 +344,19 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     /// <summary>
     /// The compile alone: figures (not run yet), or why the network cannot be formed. Both halves run
     /// under the memory guard, one after the other (never nested, so workers cannot wait on each
-    /// other): the structure by its op count first, then the weights, whose bytes the figures give.
-    /// Weights that would not fit leave a counted network without a model, reported too large to run here.
+    /// other): the structure by its op count first, then the structure and the weights, whose bytes
+    /// the figures give. Weights that would not fit are never drawn: the network is counted, without
+    /// a model, and reported too large to run here.
     /// </summary>
     private (Evaluation, CompiledModel?) Compile(Genotype genotype, GenotypeHashes hashes)
     {
         var (figures, failure) = CompileFigures(genotype, hashes);
         if (failure is not null) return (failure, null);
-        var need = CompileEstimate(genotype) + figures!.Figures.WeightBytes;
+        if (CompileRefusal(genotype, figures!.Figures) is { } refused)
+            return (Counted(figures, onnxBytes: null, refused.FailureReason), null);
         CompiledModel model;
-        using (var reservation = _memory.Reserve(need))
+        using (_memory.Reserve(CompileEstimate(genotype) + figures.Figures.WeightBytes))
         {
-            if (reservation is null)
-                return (Counted(figures, onnxBytes: null,
-                    $"not compiled to ONNX: its weights and structure need about {Gigabytes(need)} GB, more than the {Gigabytes(_memory.CapacityBytes)} GB this run may use (--memory-limit-gb)"), null);
             try
             {
                 model = Compiler.Emit(genotype, options.Skeleton, figures);
@@ -368,16 +372,13 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
     /// <summary>Lowering, shapes and figures under the memory guard; a failure is the evaluation to report.</summary>
     private (CompiledFigures?, Evaluation?) CompileFigures(Genotype genotype, GenotypeHashes hashes)
     {
-        var need = CompileEstimate(genotype);
-        using var reservation = _memory.Reserve(need);
-        if (reservation is null)
-            return (null, new Evaluation(CheckStatus.OverBudget,
-                $"not compiled: its {ExpansionSize.CellPrimitiveOps(genotype) * options.Skeleton.Stages.Sum(s => (long)s.Cells):N0} primitive ops need about " +
-                $"{Gigabytes(need)} GB to compile, more than the {Gigabytes(_memory.CapacityBytes)} GB this run may use (--memory-limit-gb)",
-                TooLargeKind, null, null, null, null, SmokeTested: false));
         try
         {
-            return (Compiler.CompileFigures(genotype, options.Skeleton, options.Compile, hashes), null);
+            // The op limit first: a network over it is invalid on every machine, whatever its memory.
+            Compiler.CheckExpandedSize(genotype, options.Skeleton);
+            if (CompileRefusal(genotype, null) is { } refused) return (null, refused);
+            using (_memory.Reserve(CompileEstimate(genotype)))
+                return (Compiler.CompileFigures(genotype, options.Skeleton, options.Compile, hashes), null);
         }
         catch (DeadCellException dead)
         {
@@ -387,6 +388,28 @@ public sealed class CandidateChecker(CheckOptions options, IResultCache? cache =
         {
             return (null, new Evaluation(CheckStatus.Invalid, e.Message, "invalid: cannot form the network", null, null, null, null));
         }
+    }
+
+    /// <summary>
+    /// Why this run's memory cannot hold the compile: its structure (before the figures are known;
+    /// null figures), or its structure and weights. An over_budget evaluation without figures for the
+    /// first, a reason alone (Failure null) for the second; null when the compile fits.
+    /// </summary>
+    private Evaluation? CompileRefusal(Genotype genotype, NetworkFigures? figures)
+    {
+        var structure = CompileEstimate(genotype);
+        if (structure > _memory.CapacityBytes)
+            return new Evaluation(CheckStatus.OverBudget,
+                $"not compiled: its {ExpandedOps(genotype):N0} primitive ops need about {Gigabytes(structure)} GB to compile, " +
+                $"more than the {Gigabytes(_memory.CapacityBytes)} GB this run may use (--memory-limit-gb)",
+                TooLargeKind, null, null, null, null, SmokeTested: false);
+        if (figures is null) return null;
+        var need = structure + figures.WeightBytes;
+        return need > _memory.CapacityBytes
+            ? new Evaluation(null,
+                $"not compiled to ONNX: its weights and structure need about {Gigabytes(need)} GB, more than the {Gigabytes(_memory.CapacityBytes)} GB this run may use (--memory-limit-gb)",
+                null, null, null, null, null, SmokeTested: false)
+            : null;
     }
 
     /// <summary>A compiled network's evaluation before any run; a reason says why it is not run.</summary>

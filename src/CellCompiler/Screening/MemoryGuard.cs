@@ -21,6 +21,12 @@ public sealed class MemoryGuard(long capacityBytes)
 
     public static MemoryGuard Unbounded { get; } = new(long.MaxValue);
 
+    /// <summary>Reservations waiting to be granted (for tests: a queue's order is observable only through it).</summary>
+    internal long Waiting
+    {
+        get { lock (_lock) return _nextTicket - _serving; }
+    }
+
     /// <summary>Waits until <paramref name="bytes"/> fit and holds them until disposed; null if they never can.</summary>
     public Reservation? Reserve(long bytes)
     {

@@ -89,7 +89,12 @@ public sealed record ScreeningSettings
             throw new InputException(resultsPath, "",
                 $"has no settings file beside it ({path}), so what made it cannot be checked; start again without --resume");
         // Bounded while reading: a settings file replaced by a device or a pipe is refused at the limit.
-        var bytes = BoundedFile.ReadAll(path, MaxBytes, "the settings of an earlier run");
+        byte[] bytes;
+        try { bytes = BoundedFile.ReadAll(path, MaxBytes, "the settings of an earlier run"); }
+        catch (InputException e)
+        {
+            throw new InputException(path, "", $"{string.Join("; ", e.Problems.Select(p => p.Problem))}; start again without --resume");
+        }
         JsonObject? before;
         try { before = JsonNode.Parse(bytes) as JsonObject; }
         catch (JsonException e)
